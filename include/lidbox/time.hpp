@@ -1,0 +1,77 @@
+// Time layer: UTC internally, local standard time for daily statistics, local civil time (with
+// daylight saving) for emission clocks.
+//
+// Instants are whole seconds since 1970-01-01T00:00:00Z (UtcSeconds); leap seconds are not
+// counted (POSIX time, and CF "standard" calendar values with units_metadata leap_seconds: none).
+//
+// Time zones are given either as a fixed offset ("UTC", "Z", "+01:00", "-0530") or as a POSIX TZ
+// string with the POSIX sign convention, the one the TZ environment variable uses:
+// "CET-1CEST,M3.5.0,M10.5.0/3" is one hour AHEAD of UTC (IEEE Std 1003.1, section 8.3, "TZ").
+// Boost.Date_Time's posix_time_zone uses the opposite sign and silently accepts garbage, so this
+// layer validates the string itself and hands Boost a canonical, sign-corrected form.
+#pragma once
+
+#include <cstdint>
+#include <memory>
+#include <string>
+#include <string_view>
+
+namespace lidbox {
+
+using UtcSeconds = std::int64_t;
+inline constexpr UtcSeconds kSecondsPerHour = 3600;
+inline constexpr UtcSeconds kSecondsPerDay = 86400;
+
+// Broken-down wall-clock time.
+struct CivilTime {
+  int year = 1970;
+  int month = 1;   // 1..12
+  int day = 1;     // 1..31
+  int hour = 0;    // 0..23
+  int minute = 0;  // 0..59
+  int second = 0;  // 0..59
+  int day_of_week = 4;  // 0 = Monday ... 6 = Sunday (ISO 8601 order)
+};
+
+// Days since 1970-01-01 of a proleptic Gregorian date, and back (H. Hinnant's civil algorithms).
+std::int64_t days_from_civil(int year, int month, int day);
+CivilTime civil_from_utc_seconds(UtcSeconds t);  // the UTC wall clock of an instant
+UtcSeconds utc_seconds_from_civil(const CivilTime& c);  // treats c as UTC
+
+// "2026-01-05T13:00:00Z"
+std::string format_utc(UtcSeconds t);
+// "2026-01-05T14:00:00+01:00"
+std::string format_with_offset(UtcSeconds t, int offset_s);
+
+class TimeZone {
+ public:
+  TimeZone();  // UTC
+  // "UTC", "Z", "+01:00", "-05", "+0530", or a POSIX TZ string. InputError naming `where`.
+  static TimeZone parse(std::string_view spec, std::string_view where);
+
+  [[nodiscard]] int standard_offset_s() const { return standard_offset_s_; }
+  [[nodiscard]] bool has_daylight_saving() const { return has_dst_; }
+  // Civil offset (standard + daylight saving where in force) at an instant [s east of UTC].
+  [[nodiscard]] int civil_offset_s(UtcSeconds t) const;
+  [[nodiscard]] CivilTime civil(UtcSeconds t) const;     // local civil (wall-clock) time
+  [[nodiscard]] CivilTime standard(UtcSeconds t) const;  // local standard time (never DST)
+  // A local civil time to UTC. A time that does not exist (skipped at the spring change) or that
+  // exists twice (repeated at the autumn change) is an InputError naming `where`.
+  [[nodiscard]] UtcSeconds from_civil(const CivilTime& local, std::string_view where) const;
+  [[nodiscard]] const std::string& spec() const { return spec_; }
+
+ private:
+  struct Rules;
+  std::string spec_ = "UTC";
+  int standard_offset_s_ = 0;
+  bool has_dst_ = false;
+  std::shared_ptr<const Rules> rules_;  // null for fixed offsets
+};
+
+// ISO 8601 date-time, "YYYY-MM-DDThh:mm[:ss[.fff]]" followed by "Z", "+hh:mm", "+hhmm" or "+hh";
+// a space may stand for "T". Without an offset the time is local civil time in `zone_for_naive`,
+// and without a zone it is an InputError. Fractions of a second are refused (hourly data).
+UtcSeconds parse_iso8601(std::string_view text, const TimeZone* zone_for_naive,
+                         std::string_view where);
+
+}  // namespace lidbox
