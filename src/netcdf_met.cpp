@@ -1079,15 +1079,37 @@ const std::map<std::string, std::vector<std::string>>& concentration_standard_na
   return m;
 }
 
+SubHourlyRule parse_sub_hourly_rule(std::string_view text, std::string_view where) {
+  if (text == "hour_mean") return SubHourlyRule::hour_mean;
+  if (text == "on_the_hour") return SubHourlyRule::on_the_hour;
+  if (text == "refuse") return SubHourlyRule::refuse;
+  throw InputError(std::string(where), "sub-hourly rule " + quoted(std::string(text)),
+                   "hour_mean, on_the_hour or refuse");
+}
+
+CoarseStepRule parse_coarse_step_rule(std::string_view text, std::string_view where) {
+  if (text == "refuse") return CoarseStepRule::refuse;
+  if (text == "linear") return CoarseStepRule::linear;
+  throw InputError(std::string(where), "coarse-step rule " + quoted(std::string(text)),
+                   "refuse or linear");
+}
+
+const std::vector<std::string>& netcdf_met_roles() {
+  static const std::vector<std::string> r = [] {
+    std::vector<std::string> v;
+    for (const auto& role : roles()) v.push_back(role.key);
+    v.emplace_back("time");
+    return v;
+  }();
+  return r;
+}
+
 MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
                           NetcdfReadInfo* info) {
   const File f(path);
-  static const std::set<std::string> kRoles = {
-      "mixing_height",       "eastward_wind",   "northward_wind",   "wind_speed",
-      "wind_from_direction", "air_temperature", "surface_pressure", "time"};
+  const auto& known = netcdf_met_roles();
   for (const auto& [r, name] : opt.variables) {
-    if (!kRoles.count(r)) {
-      std::vector<std::string> known(kRoles.begin(), kRoles.end());
+    if (std::find(known.begin(), known.end(), r) == known.end()) {
       throw InputError(path, "unknown variable role " + quoted(r), "one of " + join(known));
     }
   }

@@ -66,6 +66,7 @@
 #include <map>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <utility>
 #include <vector>
 
@@ -89,6 +90,14 @@ struct LatLonBox {
 
 enum class SubHourlyRule { hour_mean, on_the_hour, refuse };
 enum class CoarseStepRule { refuse, linear };
+
+// The rules by name, as a case file or the command line spells them: "hour_mean", "on_the_hour",
+// "refuse"; "refuse", "linear". InputError naming `where` and listing the names otherwise.
+SubHourlyRule parse_sub_hourly_rule(std::string_view text, std::string_view where);
+CoarseStepRule parse_coarse_step_rule(std::string_view text, std::string_view where);
+
+// The roles NetcdfMetOptions::variables accepts (as listed above, plus "time").
+const std::vector<std::string>& netcdf_met_roles();
 
 struct NetcdfMetOptions {
   // role -> variable name; roles as listed above. Unknown roles are an InputError.

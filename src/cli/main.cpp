@@ -2,14 +2,18 @@
 #include <CLI/CLI.hpp>
 #include <iostream>
 
+#include "metdump_command.hpp"
+
 int main(int argc, char** argv) {
   CLI::App app{"lidbox: hourly box model of an urban airshed"};
   app.set_version_flag("--version", std::string("lidbox ") + LIDBOX_VERSION);
+  int exit_code = 0;
+  lidbox::cli::add_met_dump_command(app, exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
     const int code = app.exit(e);
     return code == 0 ? 0 : 2;
   }
-  return 0;
+  return exit_code;
 }
