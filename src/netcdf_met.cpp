@@ -36,18 +36,22 @@ std::string join(const std::vector<std::string>& v, const std::string& sep = ", 
   return r;
 }
 
+// Optimal-string-alignment distance: Levenshtein plus adjacent transpositions ("bhl" ~ "blh").
 std::size_t edit_distance(const std::string& a, const std::string& b) {
-  std::vector<std::size_t> prev(b.size() + 1), cur(b.size() + 1);
-  for (std::size_t j = 0; j <= b.size(); ++j) prev[j] = j;
-  for (std::size_t i = 1; i <= a.size(); ++i) {
-    cur[0] = i;
-    for (std::size_t j = 1; j <= b.size(); ++j) {
-      const std::size_t sub = prev[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1);
-      cur[j] = std::min({prev[j] + 1, cur[j - 1] + 1, sub});
+  const std::size_t n = a.size(), m = b.size();
+  std::vector<std::vector<std::size_t>> d(n + 1, std::vector<std::size_t>(m + 1));
+  for (std::size_t i = 0; i <= n; ++i) d[i][0] = i;
+  for (std::size_t j = 0; j <= m; ++j) d[0][j] = j;
+  for (std::size_t i = 1; i <= n; ++i) {
+    for (std::size_t j = 1; j <= m; ++j) {
+      const std::size_t cost = a[i - 1] == b[j - 1] ? 0 : 1;
+      d[i][j] = std::min({d[i - 1][j] + 1, d[i][j - 1] + 1, d[i - 1][j - 1] + cost});
+      if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1]) {
+        d[i][j] = std::min(d[i][j], d[i - 2][j - 2] + 1);
+      }
     }
-    std::swap(prev, cur);
   }
-  return prev[b.size()];
+  return d[n][m];
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -267,20 +271,37 @@ bool is_coordinate(const File& f, const Var& v) {
 
 // The variable closest to what was sought, among data variables (not coordinates); "" if none is
 // near enough to be a useful hint.
-std::string closest(const File& f, const std::vector<std::string>& probes) {
+std::string closest(const File& f, const std::vector<std::string>& probes, bool skip_taken) {
+  // With skip_taken, variables that already carry the standard name of another role are not
+  // candidates (a role looked up by standard name).
+  std::set<std::string> taken;
+  for (const auto& r : roles()) taken.insert(r.standard_name);
+  for (const auto& [k, names] : concentration_standard_names())
+    taken.insert(names.begin(), names.end());
+  std::set<std::string> sought;
+  for (const auto& p : probes) sought.insert(lower(p));
   std::string best;
-  std::size_t best_d = std::numeric_limits<std::size_t>::max();
+  std::size_t best_score = std::numeric_limits<std::size_t>::max();
   for (const auto& v : f.vars()) {
     if (is_coordinate(f, v)) continue;
-    std::vector<std::string> names = {lower(v.name)};
     const std::string sn = lower(f.standard_name(v));
+    if (skip_taken && taken.count(sn) && !sought.count(sn)) continue;
+    std::vector<std::string> names = {lower(v.name)};
     if (!sn.empty()) names.push_back(sn);
-    for (const auto& p : probes) {
+    for (const auto& probe : sought) {
       for (const auto& n : names) {
-        const std::size_t d = edit_distance(lower(p), n);
-        const std::size_t limit = std::max<std::size_t>(2, p.size() / 3);
-        if (d <= limit && d < best_d) {
-          best_d = d;
+        std::size_t score = std::numeric_limits<std::size_t>::max();
+        if (n == probe) {
+          score = 0;
+        } else if (probe.size() >= 3 && n.rfind(probe, 0) == 0 &&
+                   !std::isalpha(static_cast<unsigned char>(n[probe.size()]))) {
+          score = 1;  // "pblh_m", "blh2" for "pblh", "blh"
+        } else {
+          const std::size_t d = edit_distance(probe, n);
+          if (d <= std::max<std::size_t>(1, probe.size() / 3)) score = 1 + d;
+        }
+        if (score < best_score) {
+          best_score = score;
           best = v.name;
         }
       }
@@ -289,9 +310,10 @@ std::string closest(const File& f, const std::vector<std::string>& probes) {
   return best;
 }
 
-std::string present_and_hint(const File& f, const std::vector<std::string>& probes) {
+std::string present_and_hint(const File& f, const std::vector<std::string>& probes,
+                             bool skip_taken = false) {
   std::string s = " among the variables present: " + join(f.var_names());
-  const std::string hint = closest(f, probes);
+  const std::string hint = closest(f, probes, skip_taken);
   if (!hint.empty()) s += "; did you mean " + quoted(hint) + "?";
   return s;
 }
@@ -331,7 +353,7 @@ const Var* find_role(const File& f, const NetcdfMetOptions& opt, const Role& r, 
   probes.insert(probes.end(), r.aliases.begin(), r.aliases.end());
   throw InputError(f.path(),
                    "no variable for " + r.description + " (standard_name " +
-                       quoted(r.standard_name) + ")" + present_and_hint(f, probes),
+                       quoted(r.standard_name) + ")" + present_and_hint(f, probes, true),
                    "a variable with that standard_name, or the role " + quoted(r.key) +
                        " mapped to a variable name");
 }

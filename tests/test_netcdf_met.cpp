@@ -526,3 +526,19 @@ TEST_CASE("a background series is read as an extra met column in ug m-3") {
             "variables present: time, u10, v10, blh, pm25_bg; did you mean \"pm25_bg\"?; expected "
             "a variable name or a CF standard_name present in the file");
 }
+
+TEST_CASE("the closest-name hint skips other roles' variables and too distant names") {
+  const std::string dir = scratch_dir("hint");
+  const auto write = [&](const std::string& name, const std::string& extra_var) {
+    Simple s(dir + "/" + name, "hours since 2026-01-05", 2);
+    if (!extra_var.empty()) (void)s.w.var(extra_var, NC_FLOAT, {s.t_dim}, "", "m");
+    return dir + "/" + name;
+  };
+  // "pblh_m" begins with the common short name "pblh"; u10 (eastward_wind) is never offered.
+  std::string p = write("prefix.nc", "pblh_m");
+  CHECK(error_of(p).find("among the variables present: time, u10, v10, pblh_m; did you mean "
+                         "\"pblh_m\"?; expected") != std::string::npos);
+  p = write("none.nc", "");
+  CHECK(error_of(p).find("among the variables present: time, u10, v10; expected") !=
+        std::string::npos);
+}
