@@ -583,10 +583,15 @@ Selection select(const File& f, const Var& v, const NetcdfMetOptions& opt, const
 
   if (lat_pos < 0) {
     s.cells.push_back({0, 1.0});
-    if (opt.point || opt.footprint)
-      layout.push_back("a single time series (point/footprint not needed)");
-    else if (layout.empty())
-      layout.push_back("a single time series");
+    if (layout.empty()) {
+      std::string one = "a single time series";
+      if (id_var && station_dim < 0) {
+        const auto ids = f.read_ids(*id_var);
+        if (!ids.empty() && !ids[0].empty()) one += " " + quoted(ids[0]);
+      }
+      layout.push_back(one);
+    }
+    if (opt.point || opt.footprint) layout.push_back("point/footprint not needed");
     s.layout = join(layout);
     return s;
   }
