@@ -108,6 +108,15 @@ def globals_(ds, title, csv_name, args):
     ds.caution = CAUTION
 
 
+def scalar_position(ds, lat_deg, lon_deg):
+    lat = ds.createVariable("lat", "f8", ())
+    lat.standard_name, lat.units = "latitude", "degrees_north"
+    lat[...] = lat_deg
+    lon = ds.createVariable("lon", "f8", ())
+    lon.standard_name, lon.units = "longitude", "degrees_east"
+    lon[...] = lon_deg
+
+
 def data_var(ds, name, sn, units, dims, dtype="f8", long_name=None, reading="hour_average"):
     v = ds.createVariable(name, dtype, dims, fill_value=(FILL if dtype == "f8" else
                                                         (np.float32(FILL) if dtype == "f4" else np.int16(-32767))))
@@ -151,12 +160,7 @@ def main():
         ds.featureType = "timeSeries"
         time_axis(ds, times, n, bounds)
         ds.createDimension("name_strlen", len(a.station))
-        lat = ds.createVariable("lat", "f8", ())
-        lat.standard_name, lat.units = "latitude", "degrees_north"
-        lat[...] = a.lat
-        lon = ds.createVariable("lon", "f8", ())
-        lon.standard_name, lon.units = "longitude", "degrees_east"
-        lon[...] = a.lon
+        scalar_position(ds, a.lat, a.lon)
         st = ds.createVariable("station_name", "S1", ("name_strlen",))
         st.cf_role = "timeseries_id"
         st.long_name = "station name (invented)"
@@ -231,12 +235,7 @@ def main():
         r.standard_name = "realization"
         r.long_name = "ensemble member (0 is the unperturbed series)"
         r[:] = np.arange(members)
-        lat = ds.createVariable("lat", "f8", ())
-        lat.standard_name, lat.units = "latitude", "degrees_north"
-        lat[...] = a.lat
-        lon = ds.createVariable("lon", "f8", ())
-        lon.standard_name, lon.units = "longitude", "degrees_east"
-        lon[...] = a.lon
+        scalar_position(ds, a.lat, a.lon)
         for name, (sn, units, vals) in known.items():
             x = vals[None, :]
             if name == "mixing_height":
