@@ -1,12 +1,14 @@
 #include "lidbox/netcdf_writer.hpp"
 
 #include <netcdf.h>
+#include <netcdf_mem.h>
 #include <unistd.h>
 
 #include <atomic>
 #include <cctype>
 #include <chrono>
 #include <cmath>
+#include <cstdlib>
 #include <filesystem>
 #include <set>
 
@@ -262,6 +264,28 @@ std::string cf_name(const std::string& s) {
   return r;
 }
 }  // namespace
+
+std::string render_cf_timeseries(const CfTable& table, CfFileFormat format) {
+  check_table(table);
+  const int mode =
+      format == CfFileFormat::netcdf4_classic ? (NC_NETCDF4 | NC_CLASSIC_MODEL) : NC_64BIT_OFFSET;
+  int nc = -1;
+  try {
+    ok(nc_create_mem("lidbox-in-memory.nc", mode, 64 * 1024, &nc), "create in memory");
+    write_file(nc, table);
+    NC_memio io{};
+    const int st = nc_close_memio(nc, &io);
+    nc = -1;
+    ok(st, "close in memory");
+    // NetCDF-C hands over a malloc'ed block.
+    std::string bytes(static_cast<const char*>(io.memory), io.size);
+    std::free(io.memory);
+    return bytes;
+  } catch (const WriteFailure& e) {
+    if (nc >= 0) nc_close(nc);
+    throw InternalError("NetCDF in memory: " + e.what);
+  }
+}
 
 CfTable met_cf_table(const MetSeries& met) {
   CfTable t;

@@ -204,3 +204,20 @@ TEST_CASE("a missing output directory is an input error naming the path") {
                                        "\" does not exist; expected an existing output directory");
   }
 }
+
+TEST_CASE("the in-memory rendering is a NetCDF file with the same content") {
+  for (const auto format : {CfFileFormat::netcdf4_classic, CfFileFormat::netcdf3_64bit}) {
+    const std::string bytes = render_cf_timeseries(hourly_table(), format);
+    const std::string path = scratch_dir("writer-memory") + "/from-memory.nc";
+    std::ofstream(path, std::ios::binary) << bytes;
+    NcReader r(path);
+    CHECK(r.format() == (format == CfFileFormat::netcdf4_classic ? NC_FORMAT_NETCDF4_CLASSIC
+                                                                 : NC_FORMAT_64BIT_OFFSET));
+    CHECK(r.values("co", 3)[2] == 300.5);
+    CHECK(r.text("", "caution") == kScreeningCaution);
+    CHECK(r.values("time_bnds", 6)[5] == 3.0);
+  }
+  CfTable bad = hourly_table();
+  bad.time_utc[1] = bad.time_utc[0];
+  CHECK_THROWS_AS(render_cf_timeseries(bad), InternalError);
+}

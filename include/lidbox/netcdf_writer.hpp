@@ -75,6 +75,12 @@ enum class CfFileFormat {
 void write_cf_timeseries(const std::string& path, const CfTable& table,
                          CfFileFormat format = CfFileFormat::netcdf4_classic);
 
+// The same file as bytes in memory (NetCDF-C in-memory files), for a caller that writes a set of
+// outputs all-or-nothing itself (atomic_file.hpp's OutputFile::content takes them as they are).
+// A malformed table is an InternalError, as above.
+std::string render_cf_timeseries(const CfTable& table,
+                                 CfFileFormat format = CfFileFormat::netcdf4_classic);
+
 // The met forcing as a table: mixing height, wind components, speed and direction, temperature
 // and pressure when present, the extra columns with their units, and the gap-filled flag.
 // Rows are the met stamps, instantaneous (period_s = 0); `title` and station fields are left to
