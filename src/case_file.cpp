@@ -352,14 +352,14 @@ PollutantSpec read_pollutant(const std::string& name, const toml::table& t, cons
         covered += width;
         if (std::fabs(s.to_deg - next.from_deg) > 1e-9) {
           throw InputError(rb.where("by_wind_from"),
-                           "the sector starting at " + std::to_string(s.from_deg) +
-                               " deg ends at " + std::to_string(s.to_deg) +
-                               " deg but the next starts at " + std::to_string(next.from_deg) + " deg",
+                           "the sector starting at " + format_number(s.from_deg) +
+                               " deg ends at " + format_number(s.to_deg) +
+                               " deg but the next starts at " + format_number(next.from_deg) + " deg",
                            "sectors that cover 0-360 deg without gaps or overlaps");
         }
       }
       if (std::fabs(covered - 360.0) > 1e-9) {
-        throw InputError(rb.where("by_wind_from"), "sectors covering " + std::to_string(covered) + " deg",
+        throw InputError(rb.where("by_wind_from"), "sectors covering " + format_number(covered) + " deg",
                          "sectors that cover 360 deg exactly once");
       }
     }
@@ -491,8 +491,8 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
     if (!(c.spin_up_tolerance > 0.0)) throw InputError(r.where("spin_up_tolerance"), "a tolerance <= 0", "a positive number");
     c.spin_up_max_days = static_cast<int>(r.optional_integer("spin_up_max_days").value_or(60));
     if (c.spin_up_max_days < 1) throw InputError(r.where("spin_up_max_days"), "fewer than 1 day", "1 or more");
-    c.engine.max_lambda_dt = r.optional_number("max_lambda_dt").value_or(0.2);
-    c.engine.max_relative_lid_change = r.optional_number("max_relative_lid_change").value_or(0.05);
+    c.engine.max_lambda_dt = r.optional_number("max_lambda_dt").value_or(0.1);
+    c.engine.max_relative_lid_change = r.optional_number("max_relative_lid_change").value_or(0.02);
     c.engine.max_substeps_per_hour = static_cast<int>(r.optional_integer("max_substeps_per_hour").value_or(3600));
     if (!(c.engine.max_lambda_dt > 0.0) || !(c.engine.max_relative_lid_change > 0.0) ||
         c.engine.max_substeps_per_hour < 1) {

@@ -5,6 +5,7 @@
 
 #include "lidbox/csv_met.hpp"
 #include "lidbox/error.hpp"
+#include "lidbox/text.hpp"
 
 namespace lidbox {
 
@@ -109,7 +110,7 @@ Forcing build_forcing(const CaseSpec& c, const MetSeries& met, std::vector<HourR
         const double raw = inst ? 0.5 * (v[i] + v[i + 1]) : v[i];
         if (raw < 0.0) {
           throw InputError(met.source + ":" + std::to_string(met.source_line[i]),
-                           "negative background " + std::to_string(raw), "a concentration >= 0");
+                           "negative background " + format_number(raw), "a concentration >= 0");
         }
         cb = raw * col.to_g_m3;
       } else if (ps.background.kind == BackgroundSpec::Kind::by_wind_from) {

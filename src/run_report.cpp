@@ -9,14 +9,6 @@
 
 namespace lidbox {
 
-std::string format_number(double v, int digits) {
-  if (std::isnan(v)) return "";
-  if (v == 0.0) return "0";
-  char buf[40];
-  std::snprintf(buf, sizeof buf, "%.*g", digits, v);
-  return buf;
-}
-
 namespace {
 
 std::string local_label(const HourRecord& h, UtcSeconds t) {

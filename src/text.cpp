@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cerrno>
 #include <cmath>
+#include <cstdio>
 #include <cstdlib>
 #include <fstream>
 #include <sstream>
@@ -87,6 +88,14 @@ std::string read_text_file(const std::string& path, const std::string& display_n
   std::ostringstream ss;
   ss << in.rdbuf();
   return ss.str();
+}
+
+std::string format_number(double v, int digits) {
+  if (std::isnan(v)) return "";
+  if (v == 0.0) return "0";
+  char buf[40];
+  std::snprintf(buf, sizeof buf, "%.*g", digits, v);
+  return buf;
 }
 
 namespace {

@@ -63,8 +63,8 @@ struct EngineOptions {
   double min_wind_m_s = 0.5;
   double min_mixing_height_m = 50.0;
   // Sub-step control for interpolated forcing.
-  double max_lambda_dt = 0.2;            // lambda * h per sub-step
-  double max_relative_lid_change = 0.05;  // |dH| / H per sub-step
+  double max_lambda_dt = 0.1;            // lambda * h per sub-step
+  double max_relative_lid_change = 0.02;  // |dH| / H per sub-step
   int max_substeps_per_hour = 3600;
   int fixed_substeps_per_hour = 0;  // > 0 overrides the adaptive choice (convergence studies)
 };

@@ -8,6 +8,7 @@
 #include "lidbox/atomic_file.hpp"
 #include "lidbox/case_file.hpp"
 #include "lidbox/run.hpp"
+#include "lidbox/text.hpp"
 
 namespace lidbox {
 
@@ -24,8 +25,5 @@ std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunRes
 std::string render_chart_svg(const CaseSpec& c, const RunResult& r);
 
 std::vector<OutputFile> render_run_outputs(const CaseSpec& c, const MetSeries& met, const RunResult& r);
-
-// Number formatting shared by the tables: shortest round-trip for `digits` significant digits.
-std::string format_number(double v, int digits = 7);
 
 }  // namespace lidbox

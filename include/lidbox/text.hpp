@@ -17,6 +17,8 @@ std::vector<std::string> split_csv_row(const std::string& line);
 bool parse_double(std::string_view text, double& value);
 // Whole file; InputError naming `display_name` when it cannot be read.
 std::string read_text_file(const std::string& path, const std::string& display_name);
+// `digits` significant digits, no trailing zeros; "" for NaN (a missing value in a table).
+std::string format_number(double v, int digits = 7);
 // The closest candidate by edit distance, or empty when none is close (distance > 1/3 length).
 std::string closest_name(std::string_view word, const std::vector<std::string>& candidates);
 
