@@ -163,13 +163,21 @@ namespace {
 //   phi1(x) = (1 - e^-x) / x,   phi2(x) = (x - 1 + e^-x) / x^2,
 // instead of through C* = a / lambda, which cancels catastrophically when lambda h is tiny
 // (a near-calm, loss-free box). Series below 1e-4: the truncation error is under 1e-17.
-inline double phi1(double x) {
-  if (x < 1e-4) return 1.0 - x * (0.5 - x * (1.0 / 6.0 - x / 24.0));
-  return -std::expm1(-x) / x;
-}
-inline double phi2(double x) {
-  if (x < 1e-4) return 0.5 - x * (1.0 / 6.0 - x * (1.0 / 24.0 - x / 120.0));
-  return (x + std::expm1(-x)) / (x * x);
+struct Phi {
+  double decay, g1, g2;  // e^-x, h phi1(x), h^2 phi2(x)
+};
+// One expm1 per pollutant and layer per sub-step.
+inline Phi phis(double x, double h) {
+  const double em1 = std::expm1(-x);
+  Phi p{1.0 + em1, 0.0, 0.0};
+  if (x < 1e-4) {
+    p.g1 = h * (1.0 - x * (0.5 - x * (1.0 / 6.0 - x / 24.0)));
+    p.g2 = h * h * (0.5 - x * (1.0 / 6.0 - x * (1.0 / 24.0 - x / 120.0)));
+  } else {
+    p.g1 = h * (-em1 / x);
+    p.g2 = h * h * ((x + em1) / (x * x));
+  }
+  return p;
 }
 }  // namespace
 
@@ -188,10 +196,8 @@ void BoxEngine::exact_step(BoxState& s, double dt, double f, double fa, const Fo
     const double ca = F.free_troposphere_g_m3[p * n + hour];
     // Mixed layer: dC/dt = a_j - lambda C.
     const double lambda = f + pr.loss_rate_per_s + pr.deposition_velocity_m_s / H;
-    const double x = lambda * dt;
-    const double decay = std::exp(-x);
-    const double g1 = dt * phi1(x);
-    const double g2 = dt * dt * phi2(x);
+    const Phi ph = phis(lambda * dt, dt);
+    const double decay = ph.decay, g1 = ph.g1, g2 = ph.g2;
     double integral = 0.0;
     double q_total = 0.0;
     for (std::size_t j = 0; j < J; ++j) {
@@ -223,10 +229,8 @@ void BoxEngine::exact_step(BoxState& s, double dt, double f, double fa, const Fo
     if (options_.residual_layer && D > 0.0) {
       const double lr = pr.residual_loss_rate_per_s + fa;
       if (lr > 0.0) {
-        const double xr = lr * dt;
-        const double decay_r = std::exp(-xr);
-        const double gr1 = dt * phi1(xr);
-        const double gr2 = dt * dt * phi2(xr);
+        const Phi phr = phis(lr * dt, dt);
+        const double decay_r = phr.decay, gr1 = phr.g1, gr2 = phr.g2;
         double integral_r = 0.0;
         for (std::size_t j = 0; j < J; ++j) {
           const std::size_t k = p * J + j;
