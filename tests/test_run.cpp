@@ -4,6 +4,7 @@
 
 #include "lidbox/case_file.hpp"
 #include "lidbox/csv_met.hpp"
+#include "lidbox/error.hpp"
 #include "lidbox/run.hpp"
 
 using namespace lidbox;
@@ -110,4 +111,23 @@ TEST_CASE("spin-up repeats the first day until it repeats itself") {
   CHECK(worst / peak < c.spin_up_tolerance);
   // With spin-up the initial part is zero: everything is background or sector.
   CHECK(r.mean(0, 0, 1) == 0.0);
+}
+
+TEST_CASE("a background column of the met file is converted from its header unit") {
+  std::string text = case_text("UTC");
+  text.replace(text.find("background = \"100 ug/m3\""), 24, "background = { column = \"co_bg\" }");
+  const CaseSpec c = parse_case(text, "c.toml", ".");
+  MetSeries m = flat_met(parse_iso8601("2026-01-05T00:00Z", nullptr, "t"), 30);
+  m.extra.push_back({"co_bg", "mg/m3", std::vector<double>(30, 0.25)});
+  m.extra[0].values[3] = 0.5;
+  std::vector<HourRecord> hours;
+  const Forcing F = build_forcing(c, m, hours);
+  // 0.25 mg/m3 = 2.5e-4 g/m3 (closed form: unit prefixes).
+  CHECK(F.background_g_m3[0] == doctest::Approx(2.5e-4));
+  CHECK(F.background_g_m3[3] == doctest::Approx(5e-4));
+  m.extra[0].name = "co_background";
+  CHECK_THROWS_WITH_AS((void)build_forcing(c, m, hours),
+                       "m.csv: no column \"co_bg\" for the background of CO (other columns: "
+                       "co_background); expected a column \"co_bg [unit]\"",
+                       InputError);
 }
