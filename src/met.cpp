@@ -4,6 +4,7 @@
 #include <numbers>
 
 #include "lidbox/error.hpp"
+#include "lidbox/text.hpp"
 
 namespace lidbox {
 
@@ -112,7 +113,7 @@ void validate_met(const MetSeries& met) {
         " (" + format_utc(met.stamp(i)) + ")";
     const double h = met.mixing_height_m[i];
     if (!std::isfinite(h) || h <= 0.0) {
-      throw InputError(where, "mixing height " + std::to_string(h) + " m",
+      throw InputError(where, "mixing height " + format_number(h) + " m",
                        "a mixing height above 0 m");
     }
     if (!std::isfinite(met.wind_u_m_s[i]) || !std::isfinite(met.wind_v_m_s[i])) {

@@ -2,6 +2,7 @@
 
 #include <udunits2.h>
 
+#include <cmath>
 #include <memory>
 #include <mutex>
 
@@ -81,6 +82,15 @@ UnitConversion unit_conversion(std::string_view from, std::string_view to,
   if (!cv) throw InternalError("no converter from \"" + std::string(from) + "\"");
   const double at0 = cv_convert_double(cv.get(), 0.0);
   const double at1 = cv_convert_double(cv.get(), 1.0);
+  const double at2 = cv_convert_double(cv.get(), 2.0);
+  // UDUNITS also "converts" reciprocal units (1/h -> s as 3600/x): a rate is not a time.
+  if (!std::isfinite(at0) || !std::isfinite(at1) ||
+      std::fabs((at2 - at1) - (at1 - at0)) > 1e-9 * std::fabs(at1 - at0)) {
+    throw InputError(std::string(where),
+                     "unit \"" + std::string(from) + "\" is the reciprocal of \"" +
+                         std::string(to) + "\", not a multiple of it",
+                     expected);
+  }
   return {at1 - at0, at0};
 }
 

@@ -39,3 +39,10 @@ TEST_CASE("directions accept degrees and radians but not dimensionless units") {
   CHECK(direction_unit_to_degrees("rad", "t")(std::numbers::pi) == doctest::Approx(180.0));
   CHECK_THROWS_AS((void)direction_unit_to_degrees("ppb", "t"), InputError);
 }
+
+TEST_CASE("a rate is not accepted where a time is expected") {
+  // UDUNITS-2 treats reciprocal units as convertible (1/h -> s as 3600/x); lidbox refuses that.
+  CHECK_THROWS_AS((void)unit_conversion("1/h", "s", "time", "t"), InputError);
+  CHECK(unit_conversion("%/h", "1/s", "rate", "t")(100.0) == doctest::Approx(1.0 / 3600.0));
+  CHECK(unit_conversion("t/h", "g/s", "mass rate", "t")(3.6) == doctest::Approx(1000.0));
+}

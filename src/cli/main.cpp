@@ -1,19 +1,36 @@
 // lidbox command line: the only code that parses arguments, prints or exits.
+// Exit codes: 0 success, 1 internal error (a bug), 2 bad input or usage.
 #include <CLI/CLI.hpp>
 #include <iostream>
 
+#include "lidbox/caution.hpp"
+#include "lidbox/error.hpp"
 #include "metdump_command.hpp"
+#include "run_command.hpp"
 
 int main(int argc, char** argv) {
-  CLI::App app{"lidbox: hourly box model of an urban airshed"};
+  CLI::App app{std::string("lidbox ") + LIDBOX_VERSION +
+               ": hour-by-hour box balance of an urban airshed (mixing height, wind, emissions, "
+               "residual layer) with its mass budget.\n" + lidbox::kScreeningCaution};
   app.set_version_flag("--version", std::string("lidbox ") + LIDBOX_VERSION);
+  app.require_subcommand(1);
   int exit_code = 0;
+  lidbox::cli::add_run_command(app, exit_code);
   lidbox::cli::add_met_dump_command(app, exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
     const int code = app.exit(e);
     return code == 0 ? 0 : 2;
+  } catch (const lidbox::InputError& e) {
+    std::cerr << "lidbox: error: " << e.what() << '\n';
+    return 2;
+  } catch (const lidbox::InternalError& e) {
+    std::cerr << "lidbox: " << e.what() << " (please report this)\n";
+    return 1;
+  } catch (const std::exception& e) {
+    std::cerr << "lidbox: internal error: " << e.what() << " (please report this)\n";
+    return 1;
   }
   return exit_code;
 }

@@ -1,0 +1,85 @@
+// The case file (TOML, https://toml.io/en/v1.0.0): the airshed, its time zone, the met file and
+// how to read it, the pollutants, the emission sectors and their clocks, floors, sub-step control
+// and the output directory. Every dimensional value is a quantity string with its unit
+// ("16 km", "0.5 m/s", "9 t/h", "3 day"), converted with UDUNITS-2.
+//
+// Unknown keys are errors with a "did you mean" hint; every missing required value is named;
+// every message starts with "<file>:<line>: [<table>] <key>". README.md documents each key.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "lidbox/box_model.hpp"
+#include "lidbox/concentration_units.hpp"
+#include "lidbox/emissions.hpp"
+#include "lidbox/footprint.hpp"
+#include "lidbox/met.hpp"
+#include "lidbox/time.hpp"
+
+namespace lidbox {
+
+struct WindSectorValue {
+  double from_deg = 0.0;  // clockwise from north, start of the sector (inclusive)
+  double to_deg = 0.0;    // end (exclusive); may wrap through north
+  double value_g_m3 = 0.0;
+};
+
+struct BackgroundSpec {
+  enum class Kind { constant, by_wind_from, column };
+  Kind kind = Kind::constant;
+  double value_g_m3 = 0.0;
+  std::vector<WindSectorValue> sectors;
+  std::string column;  // name of a met column (its header unit converts to the pollutant's)
+
+  // Value for air arriving from `from_deg` (by_wind_from only).
+  [[nodiscard]] double for_direction(double from_deg) const;
+};
+
+struct PollutantSpec {
+  std::string name;
+  ConcentrationUnit unit;
+  double molar_mass_g_mol = 0.0;  // 0 for aerosols
+  ReferenceConditions reference;
+  std::string reference_label;  // "us", "eu" or "custom"
+  PollutantProcesses processes;
+  BackgroundSpec background;
+  double free_troposphere_g_m3 = 0.0;
+  std::optional<double> initial_g_m3;           // only without spin-up
+  std::optional<double> initial_residual_g_m3;  // only without spin-up
+};
+
+enum class SpinUp { none, repeat_first_day };
+
+struct MetSpec {
+  std::string path;          // resolved against the case file's folder
+  std::string display_name;  // as written in the case file
+  MetReading reading = MetReading::hour_average;
+  HourLabel hour_label = HourLabel::period_start;
+  int max_gap_hours = 3;
+};
+
+struct CaseSpec {
+  std::string file;  // the case file as named by the user
+  std::string name;
+  std::string title;
+  TimeZone zone;
+  Footprint footprint;
+  MetSpec met;
+  EngineOptions engine;
+  SpinUp spin_up = SpinUp::repeat_first_day;
+  double spin_up_tolerance = 1e-3;  // relative change of the day's hour means
+  int spin_up_max_days = 60;
+  std::vector<PollutantSpec> pollutants;
+  std::vector<EmissionSector> sectors;  // rates per pollutant in the order of `pollutants`
+  std::string output_directory;         // default outputs/<name>
+  bool invented = false;                // the case says its scenario is invented
+};
+
+// Reads and checks a case file. Relative paths inside it are resolved against its folder.
+CaseSpec load_case(const std::string& path);
+// From text (tests); `file` is used in messages and `base_dir` resolves relative paths.
+CaseSpec parse_case(const std::string& text, const std::string& file, const std::string& base_dir);
+
+}  // namespace lidbox

@@ -1,0 +1,25 @@
+// Small text utilities shared by the readers: trimming, CSV fields, numbers, file reading, and
+// the "did you mean" hint for misspelt names.
+#pragma once
+
+#include <string>
+#include <string_view>
+#include <vector>
+
+namespace lidbox {
+
+std::string trim(std::string_view s);
+// Splits into lines, accepting \n and \r\n.
+std::vector<std::string> split_lines(const std::string& text);
+// One CSV row (RFC 4180): comma-separated, double quotes around fields that hold commas.
+std::vector<std::string> split_csv_row(const std::string& line);
+// Strict decimal parse of the whole text (no trailing characters, finite).
+bool parse_double(std::string_view text, double& value);
+// Whole file; InputError naming `display_name` when it cannot be read.
+std::string read_text_file(const std::string& path, const std::string& display_name);
+// `digits` significant digits, no trailing zeros; "" for NaN (a missing value in a table).
+std::string format_number(double v, int digits = 7);
+// The closest candidate by edit distance, or empty when none is close (distance > 1/3 length).
+std::string closest_name(std::string_view word, const std::vector<std::string>& candidates);
+
+}  // namespace lidbox

@@ -1,0 +1,185 @@
+#!/usr/bin/env python3
+"""Runs the real lidbox binary: the invented demo, and bad inputs.
+
+For the demo: exit code 0, the summary on stdout, all four outputs written, 168 hourly rows,
+the parts adding up to the total in every row, and the budget closing.
+For each bad input: exit code 2, the message on stderr asserted whole, and no output left.
+
+ctest runs it as: /usr/bin/python3 test_run_cli.py <lidbox binary> <source dir>
+"""
+import csv
+import os
+import shutil
+import subprocess
+import sys
+import tempfile
+
+BINARY = os.path.abspath(sys.argv[1])
+SOURCE = os.path.abspath(sys.argv[2])
+DEMO_CASE = os.path.join(SOURCE, "met-demo", "cindervale.toml")
+DEMO_MET = os.path.join(SOURCE, "met-demo", "cindervale-met.csv")
+failures = []
+
+
+def check(cond, what):
+    if not cond:
+        failures.append(what)
+        print("FAIL:", what)
+    else:
+        print("ok:", what)
+
+
+def run(args, cwd):
+    return subprocess.run([BINARY] + args, cwd=cwd, capture_output=True, text=True)
+
+
+def test_demo():
+    with tempfile.TemporaryDirectory() as d:
+        p = run(["run", DEMO_CASE, "-o", "out"], d)
+        check(p.returncode == 0, "demo exits 0 (stderr: %s)" % p.stderr.strip())
+        check("CAUTION: Screening estimate from a single well-mixed box model" in p.stdout,
+              "summary carries the caution")
+        check("Period   2026-01-12T07:00:00Z to 2026-01-19T07:00:00Z (168 hours)" in p.stdout,
+              "summary states the period")
+        check("2 h gap-filled (linear interpolation)" in p.stdout, "summary counts the filled hours")
+        for name in ("hourly.csv", "budget.csv", "summary.txt", "chart.svg"):
+            check(os.path.isfile(os.path.join(d, "out", name)), "demo writes " + name)
+        leftovers = [f for f in os.listdir(os.path.join(d, "out")) if f.startswith(".")]
+        check(leftovers == [], "no temporary files left behind")
+        with open(os.path.join(d, "out", "hourly.csv")) as f:
+            rows = list(csv.DictReader(f))
+        check(len(rows) == 168, "168 hourly rows")
+        worst = 0.0
+        for row in rows:
+            for pol, unit in (("CO", "ppm"), ("PM25", "ug m-3")):
+                total = float(row["%s_hour_mean [%s]" % (pol, unit)])
+                parts = sum(float(row["%s_part_%s [%s]" % (pol, part, unit)] or 0)
+                            for part in ("background", "initial", "traffic", "home_heating"))
+                worst = max(worst, abs(parts - total) / total)
+        # The table prints 7 significant digits: parts and total agree to that.
+        check(worst < 2e-6, "parts add up to the total in every row (worst %.1e)" % worst)
+        check(sum(int(r["met_filled"]) for r in rows) == 2, "two filled hours flagged")
+        check(any(int(r["calm_floor_applied"]) for r in rows), "calm-floor hours flagged")
+        with open(os.path.join(d, "out", "budget.csv")) as f:
+            budget = list(csv.DictReader(f))
+        check(len(budget) == 2 * 168, "budget rows per hour and pollutant")
+        mass = max(float(r["mixed_layer_mass [g]"]) + float(r["residual_layer_mass [g]"]) for r in budget)
+        closure = max(abs(float(r["cumulative_closure [g]"])) for r in budget)
+        check(closure < 1e-10 * mass * 168, "budget closes to rounding (%.1e g of %.1e g)" % (closure, mass))
+        # The residual layer carries yesterday's air into the morning: some morning hour takes
+        # more CO from the residual layer than the city emits in it.
+        carried = [r for r in budget if r["pollutant"] == "CO" and
+                   float(r["entrained_from_residual [g/h]"]) > float(r["emitted [g/h]"])]
+        check(len(carried) > 0, "residual layer re-entrained in the morning (%d hours)" % len(carried))
+
+
+def bad_case(tmp, case_edit=None, met_lines=None):
+    with open(DEMO_CASE) as f:
+        text = f.read()
+    if case_edit:
+        text = text.replace(*case_edit)
+    with open(DEMO_MET) as f:
+        lines = f.read().splitlines()
+    if met_lines is not None:
+        lines = met_lines(lines)
+    with open(os.path.join(tmp, "case.toml"), "w") as f:
+        f.write(text)
+    with open(os.path.join(tmp, "cindervale-met.csv"), "w") as f:
+        f.write("\n".join(lines) + "\n")
+
+
+def expect_error(name, message, case_edit=None, met_lines=None, args=None):
+    with tempfile.TemporaryDirectory() as d:
+        bad_case(d, case_edit, met_lines)
+        p = run(args or ["run", "case.toml", "-o", "out"], d)
+        check(p.returncode == 2, name + ": exit code 2 (got %d)" % p.returncode)
+        got = p.stderr.strip()
+        want = "lidbox: error: " + message
+        check(got == want, name + ": message asserted whole" +
+              ("" if got == want else "\n   got:  %s\n   want: %s" % (got, want)))
+        check(not os.path.exists(os.path.join(d, "out")), name + ": no output written")
+
+
+def replace_field(lines, row, col, value):
+    cells = lines[row].split(",")
+    cells[col] = value
+    out = list(lines)
+    out[row] = ",".join(cells)
+    return out
+
+
+def test_bad_inputs():
+    expect_error("unknown key",
+                 'case.toml:10: [airshed]: unknown key "x_sid" (did you mean "x_side"?); '
+                 "expected one of x_side, y_side, x_side_bearing",
+                 case_edit=('x_side = "14 km"', 'x_sid = "14 km"'))
+    expect_error("missing value",
+                 'case.toml:27: [pollutants.CO]: no "background"; expected the concentration of the '
+                 'air arriving upwind, such as background = "0.1 ppm"',
+                 case_edit=('background = "0.15 ppm"', ""))
+    expect_error("number without a unit",
+                 'case.toml:11: [airshed] y_side: a number without a unit; expected a length with '
+                 'its unit in quotes, such as "500 m"',
+                 case_edit=('y_side = "8 km"', "y_side = 8000"))
+    expect_error("zone",
+                 'case.toml:7: (top level) time_zone: time zone "Mountain" has no valid offset '
+                 "after its standard-time name; expected a fixed offset such as \"+01:00\" or "
+                 '"UTC", or a POSIX TZ string such as "CET-1CEST,M3.5.0,M10.5.0/3" (POSIX sign: '
+                 "hours WEST of Greenwich are positive)",
+                 case_edit=('time_zone = "MST7MDT,M3.2.0,M11.1.0"', 'time_zone = "Mountain"'))
+    expect_error("decreasing time",
+                 "cindervale-met.csv:21: time 2026-01-13T00:00:00Z is before the previous row's "
+                 "2026-01-13T01:00:00Z; expected strictly increasing hourly times",
+                 met_lines=lambda L: L[:20] + [L[18]] + L[20:])
+    expect_error("duplicate time",
+                 "cindervale-met.csv:6: time 2026-01-12T10:00:00Z repeats the previous row; "
+                 "expected strictly increasing hourly times",
+                 met_lines=lambda L: L[:5] + [L[4]] + L[6:])
+    expect_error("not a number",
+                 'cindervale-met.csv:11: column "mixing_height [m]": "abc" is not a number; '
+                 "expected a decimal number, or an empty cell for a missing value",
+                 met_lines=lambda L: replace_field(L, 10, 1, "abc"))
+    expect_error("long gap",
+                 "cindervale-met.csv: a gap of 4 hours (2026-01-12T16:00:00Z to "
+                 "2026-01-12T19:00:00Z); expected gaps of at most 3 hours (set [met] max_gap_hours "
+                 "to fill longer gaps, or split the run)",
+                 met_lines=lambda L: L[:10] + L[14:])
+    expect_error("unit",
+                 'cindervale-met.csv:1: column "wind_speed [kg]": unit "kg" cannot be converted '
+                 'to "m/s"; expected a unit of speed convertible to "m/s"',
+                 met_lines=lambda L: [L[0].replace("wind_speed [m/s]", "wind_speed [kg]")] + L[1:])
+    expect_error("missing column",
+                 "cindervale-met.csv:1: no complete wind (found: time, mixing_height [m], "
+                 'wind_speed [m/s], air_temperature [degC]); expected columns "wind_speed [unit]" '
+                 'and "wind_from [deg]", or "eastward_wind [unit]" and "northward_wind [unit]"',
+                 met_lines=lambda L: [",".join(c for i, c in enumerate(l.split(",")) if i != 3) for l in L])
+    expect_error("negative mixing height",
+                 'cindervale-met.csv:6: column "mixing_height [m]": negative mixing height -20; '
+                 "expected a height >= 0",
+                 met_lines=lambda L: replace_field(L, 5, 1, "-20"))
+    expect_error("direction",
+                 'cindervale-met.csv:6: column "wind_from [deg]": direction 400 outside 0-360 '
+                 "degrees; expected a direction from 0 to 360 degrees clockwise from north",
+                 met_lines=lambda L: replace_field(L, 5, 3, "400"))
+    expect_error("missing case file", "nothere.toml: the file cannot be opened; expected a readable file",
+                 args=["run", "nothere.toml", "-o", "out"])
+
+
+def test_usage():
+    with tempfile.TemporaryDirectory() as d:
+        p = run([], d)
+        check(p.returncode == 2, "no subcommand: exit code 2")
+        p = run(["--version"], d)
+        check(p.returncode == 0 and p.stdout.strip().startswith("lidbox "), "--version")
+        p = run(["--help"], d)
+        check(p.returncode == 0 and "Screening estimate" in p.stdout, "--help carries the caution")
+        p = run(["run", "a.toml", "--bogus"], d)
+        check(p.returncode == 2, "unknown option: exit code 2")
+
+
+if __name__ == "__main__":
+    test_demo()
+    test_bad_inputs()
+    test_usage()
+    print("%d failed" % len(failures))
+    sys.exit(1 if failures else 0)
