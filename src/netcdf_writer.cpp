@@ -254,16 +254,12 @@ void write_cf_timeseries(const std::string& path, const CfTable& table, CfFileFo
   }
 }
 
-namespace {
-// A column name as a CF variable name: other characters become '_', a leading non-letter gets
-// an 'x' in front ("2m temp" -> "x2m_temp").
-std::string cf_name(const std::string& s) {
+std::string cf_variable_name(const std::string& s) {
   std::string r;
   for (char c : s) r += std::isalnum(static_cast<unsigned char>(c)) ? c : '_';
   if (r.empty() || !std::isalpha(static_cast<unsigned char>(r[0]))) r = "x" + r;
   return r;
 }
-}  // namespace
 
 std::string render_cf_timeseries(const CfTable& table, CfFileFormat format) {
   check_table(table);
@@ -323,7 +319,7 @@ CfTable met_cf_table(const MetSeries& met) {
   }
   for (const auto& c : met.extra) {
     CfVariable v;
-    v.name = cf_name(c.name);
+    v.name = cf_variable_name(c.name);
     v.long_name = c.name;
     v.units = c.unit.empty() ? "1" : c.unit;
     v.values = c.values;

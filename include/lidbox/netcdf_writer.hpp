@@ -81,6 +81,10 @@ void write_cf_timeseries(const std::string& path, const CfTable& table,
 std::string render_cf_timeseries(const CfTable& table,
                                  CfFileFormat format = CfFileFormat::netcdf4_classic);
 
+// A text as a CF variable name (CF 2.3): other characters become '_', and a leading non-letter
+// gets an 'x' in front ("2m temp" -> "x2m_temp", "PM2.5" -> "PM2_5").
+std::string cf_variable_name(const std::string& text);
+
 // The met forcing as a table: mixing height, wind components, speed and direction, temperature
 // and pressure when present, the extra columns with their units, and the gap-filled flag.
 // Rows are the met stamps, instantaneous (period_s = 0); `title` and station fields are left to
