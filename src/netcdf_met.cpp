@@ -710,15 +710,22 @@ struct Unpacker {
   double valid_max = std::numeric_limits<double>::infinity();
   double scale = 1.0, offset = 0.0;
   bool is_float = false;
+  double unsigned_wrap = 0.0;  // 2^bits for a signed type marked _Unsigned = "true"
 
   Unpacker(const File& f, const Var& v) {
     is_float = v.type == NC_FLOAT || v.type == NC_DOUBLE;
     auto fill = f.number_att(v.id, "_FillValue");
-    if (fill.empty()) {
+    if (fill.empty() && v.type != NC_BYTE && v.type != NC_UBYTE) {
       // CF 2.5.1 / NetCDF User Guide: without _FillValue, the type's default fill marks
-      // unwritten values.
+      // unwritten values (not for bytes, which often hold flags or small counts).
       const double d = default_fill(v.type);
       if (!std::isnan(d)) fill.push_back(d);
+    }
+    // NetCDF User Guide, "_Unsigned": NetCDF-3 stores unsigned data in signed types.
+    if (lower(f.text_att(v.id, "_Unsigned").value_or("")) == "true") {
+      if (v.type == NC_BYTE) unsigned_wrap = 256.0;
+      if (v.type == NC_SHORT) unsigned_wrap = 65536.0;
+      if (v.type == NC_INT) unsigned_wrap = 4294967296.0;
     }
     missing = fill;
     for (double m : f.number_att(v.id, "missing_value")) missing.push_back(m);
@@ -732,6 +739,8 @@ struct Unpacker {
     if (auto a = f.number_att(v.id, "scale_factor"); a.size() == 1) scale = a[0];
     if (auto a = f.number_att(v.id, "add_offset"); a.size() == 1) offset = a[0];
   }
+  // Fill and missing values are compared in the stored (signed) type; valid bounds after the
+  // unsigned reinterpretation, as the NetCDF User Guide reads them.
   [[nodiscard]] double operator()(double packed) const {
     if (std::isnan(packed)) return kNaN;
     for (double m : missing) {
@@ -742,6 +751,7 @@ struct Unpacker {
         return kNaN;
       }
     }
+    if (unsigned_wrap > 0.0 && packed < 0.0) packed += unsigned_wrap;
     if (packed < valid_min || packed > valid_max) return kNaN;
     return packed * scale + offset;
   }

@@ -542,3 +542,41 @@ TEST_CASE("the closest-name hint skips other roles' variables and too distant na
   CHECK(error_of(p).find("among the variables present: time, u10, v10; expected") !=
         std::string::npos);
 }
+
+TEST_CASE("a 0..360 grid with descending latitudes serves a point given west of Greenwich") {
+  const std::string path = scratch_dir("grid360") + "/g.nc";
+  {
+    NcWriter w(path);
+    const int td = w.dim("time", 2);
+    const int yd = w.dim("lat", 3);
+    const int xd = w.dim("lon", 3);
+    const int t = w.var("time", NC_DOUBLE, {td}, "time", "hours since 2026-01-05");
+    const int la = w.var("lat", NC_FLOAT, {yd}, "latitude", "degrees_north");
+    const int lo = w.var("lon", NC_FLOAT, {xd}, "longitude", "degrees_east");
+    // Unsigned shorts in a signed type (NetCDF User Guide, _Unsigned): -25536 is 40000.
+    const int h = w.var("blh", NC_SHORT, {td, yd, xd}, "atmosphere_boundary_layer_thickness", "m");
+    w.text(h, "_Unsigned", "true");
+    w.number(h, "scale_factor", NC_DOUBLE, {0.05});
+    const int u = w.var("u", NC_FLOAT, {td}, "eastward_wind", "m s-1");
+    const int v = w.var("v", NC_FLOAT, {td}, "northward_wind", "m s-1");
+    w.end_define();
+    w.put(t, {0, 1});
+    w.put(la, {42, 41, 40});
+    w.put(lo, {247, 248, 249});  // 248 E = 112 W
+    std::vector<double> hv(18, 1000.0);
+    hv[4] = -25536;       // time 0, lat 41, lon 248
+    hv[9 + 4] = 30000.0;  // time 1, same cell
+    w.put(h, hv);
+    w.put(u, {1, 1});
+    w.put(v, {0, 0});
+  }
+  NetcdfMetOptions opt;
+  opt.point = LatLon{41.1, -112.05};
+  const MetSeries m = read_met_netcdf(path, opt);
+  // 40000 * 0.05 m and 30000 * 0.05 m (closed form of the packing).
+  CHECK(m.mixing_height_m[0] == doctest::Approx(2000.0));
+  CHECK(m.mixing_height_m[1] == doctest::Approx(1500.0));
+  opt.point.reset();
+  opt.footprint = LatLonBox{40.5, 41.5, -112.5, -111.5};  // just that cell, given in -180..180
+  CHECK(read_met_netcdf(path, opt).mixing_height_m[0] == doctest::Approx(2000.0));
+}

@@ -16,8 +16,10 @@
 //
 // Values (CF Conventions 8.1 and 2.5.1): _FillValue and missing_value (compared with the packed
 // values), values outside valid_min/valid_max/valid_range, and the NetCDF default fill value
-// when no _FillValue is set, become NaN; then value = packed * scale_factor + add_offset; then the
-// variable's `units` attribute (required) is converted by UDUNITS-2 (units.hpp).
+// when no _FillValue is set (not for byte types), become NaN; signed types marked
+// _Unsigned = "true" are read as unsigned (NetCDF User Guide); then
+// value = packed * scale_factor + add_offset; then the variable's `units` attribute (required)
+// is converted by UDUNITS-2 (units.hpp). Only the root group of a NetCDF-4 file is searched.
 //
 // Layouts of a data variable's dimensions, in any order:
 //   time                 the dimension of the CF time coordinate (required, strictly increasing)
