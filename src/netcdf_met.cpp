@@ -822,7 +822,7 @@ struct TimeAxis {
   std::string variable;
 };
 
-TimeAxis read_time(const File& f, const Var& data, const Selection& s, const Var* mapped_time,
+TimeAxis read_time(const File& f, const Selection& s, const Var* mapped_time,
                    bool use_bounds_start) {
   const Var* tv = mapped_time;
   if (!tv) {
@@ -873,7 +873,6 @@ TimeAxis read_time(const File& f, const Var& data, const Selection& s, const Var
     }
   }
   if (axis.t.empty()) throw InputError(where, "no time records", "at least one record");
-  (void)data;
   return axis;
 }
 
@@ -1026,10 +1025,6 @@ Hourly to_hourly(const File& f, const TimeAxis& axis, const std::vector<std::vec
 
 // ---------------------------------------------------------------------------------------------
 
-bool same_axis(const TimeAxis& a, const TimeAxis& b) {
-  return a.t == b.t;
-}
-
 struct Loaded {
   const Var* var = nullptr;
   CellValues values;
@@ -1043,7 +1038,7 @@ Loaded load(const File& f, const Var& v, const NetcdfMetOptions& opt, const Var*
   l.var = &v;
   l.sel = select(f, v, opt, mapped_time);
   l.values = read_cells(f, v, l.sel, convert);
-  l.axis = read_time(f, v, l.sel, mapped_time, bounds_start);
+  l.axis = read_time(f, l.sel, mapped_time, bounds_start);
   return l;
 }
 
@@ -1147,7 +1142,16 @@ MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
   const auto& known = netcdf_met_roles();
   for (const auto& [r, name] : opt.variables) {
     if (std::find(known.begin(), known.end(), r) == known.end()) {
-      throw InputError(path, "unknown variable role " + quoted(r), "one of " + join(known));
+      std::string hint;
+      std::size_t best = 3;  // suggest only within two edits
+      for (const auto& k : known) {
+        const std::size_t d = edit_distance(r, k);
+        if (d < best) {
+          best = d;
+          hint = "; did you mean " + quoted(k) + "?";
+        }
+      }
+      throw InputError(path, "unknown variable role " + quoted(r) + hint, "one of " + join(known));
     }
   }
   const Var* mapped_time = nullptr;
@@ -1256,7 +1260,7 @@ MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
     extra.push_back({column, unit, {}});
   }
   for (std::size_t i = 1; i < loaded.size(); ++i) {
-    if (!same_axis(loaded[0].axis, loaded[i].axis)) {
+    if (loaded[0].axis.t != loaded[i].axis.t) {
       throw InputError(f.where(*loaded[i].var),
                        "a time axis different from that of " + quoted(loaded[0].var->name),
                        "all met variables on one time axis");

@@ -580,3 +580,51 @@ TEST_CASE("a 0..360 grid with descending latitudes serves a point given west of 
   opt.footprint = LatLonBox{40.5, 41.5, -112.5, -111.5};  // just that cell, given in -180..180
   CHECK(read_met_netcdf(path, opt).mixing_height_m[0] == doctest::Approx(2000.0));
 }
+
+TEST_CASE("a half wind, a foreign time axis and an unknown role are refused by name") {
+  const std::string dir = scratch_dir("roles");
+  {
+    NcWriter w(dir + "/half.nc");
+    const int td = w.dim("time", 2);
+    const int t = w.var("time", NC_DOUBLE, {td}, "time", "hours since 2026-01-05");
+    const int h = w.var("h", NC_FLOAT, {td}, "atmosphere_boundary_layer_thickness", "m");
+    const int u = w.var("u", NC_FLOAT, {td}, "eastward_wind", "m s-1");
+    w.end_define();
+    w.put(t, {0, 1});
+    w.put(h, {300, 400});
+    w.put(u, {1, 2});
+  }
+  CHECK(error_of(dir + "/half.nc") ==
+        dir +
+            "/half.nc: no variable for the northward wind (standard_name \"northward_wind\") "
+            "among the variables present: time, h, u; expected a variable with that "
+            "standard_name, or the role \"northward_wind\" mapped to a variable name");
+  {
+    NcWriter w(dir + "/two_axes.nc");
+    const int td = w.dim("time", 2);
+    const int t2d = w.dim("time2", 2);
+    const int t = w.var("time", NC_DOUBLE, {td}, "time", "hours since 2026-01-05");
+    const int t2 = w.var("time2", NC_DOUBLE, {t2d}, "time", "hours since 2026-01-06");
+    const int h = w.var("h", NC_FLOAT, {td}, "atmosphere_boundary_layer_thickness", "m");
+    const int u = w.var("u", NC_FLOAT, {t2d}, "eastward_wind", "m s-1");
+    const int v = w.var("v", NC_FLOAT, {t2d}, "northward_wind", "m s-1");
+    w.end_define();
+    w.put(t, {0, 1});
+    w.put(t2, {0, 1});
+    w.put(h, {300, 400});
+    w.put(u, {1, 2});
+    w.put(v, {1, 2});
+  }
+  CHECK(error_of(dir + "/two_axes.nc") ==
+        dir +
+            "/two_axes.nc: variable \"u\": a time axis different from that of \"h\"; expected all "
+            "met variables on one time axis");
+  NetcdfMetOptions opt;
+  opt.variables["mixing_hieght"] = "h";
+  CHECK(error_of(dir + "/half.nc", opt) ==
+        dir +
+            "/half.nc: unknown variable role \"mixing_hieght\"; did you mean \"mixing_height\"?; "
+            "expected one of mixing_height, "
+            "eastward_wind, northward_wind, wind_speed, wind_from_direction, air_temperature, "
+            "surface_pressure, time");
+}
