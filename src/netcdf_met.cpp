@@ -444,15 +444,53 @@ struct Selection {
   std::string layout;
 };
 
+// CF Appendix H.2.4/H.2.5 ragged arrays are not read; say so before anything else fails.
+void refuse_ragged(const File& f) {
+  for (const auto& cand : f.vars()) {
+    for (const char* att : {"sample_dimension", "instance_dimension"}) {
+      if (f.text_att(cand.id, att)) {
+        throw InputError(f.path(),
+                         "a ragged-array layout (variable " + quoted(cand.name) + " has " + att +
+                             ", CF Appendix H.2.4/H.2.5)",
+                         "a single time series or the orthogonal layout X(station, time) "
+                         "(CF Appendix H.2.1, H.4)");
+      }
+    }
+  }
+}
+
 Selection select(const File& f, const Var& v, const NetcdfMetOptions& opt, const Var* mapped_time) {
   const std::string where = f.where(v);
   Selection s;
   const std::size_t nd = v.dims.size();
   s.start.assign(nd, 0);
   s.count.assign(nd, 1);
+  // The two grid dimensions (a, b) of the variable: latitude and longitude dimensions with 1-D
+  // coordinates, or the (y, x) dimensions of 2-D latitude/longitude auxiliary coordinates named
+  // in its `coordinates` attribute (CF 5.2, curvilinear grids).
   int lat_pos = -1, lon_pos = -1;
   const Var* lat_var = nullptr;
   const Var* lon_var = nullptr;
+  const Var* lat2d = nullptr;
+  const Var* lon2d = nullptr;
+  if (auto coords = f.text_att(v.id, "coordinates")) {
+    std::size_t pos = 0;
+    while (pos < coords->size()) {
+      const std::size_t end = std::min(coords->find(' ', pos), coords->size());
+      const Var* c = f.find(coords->substr(pos, end - pos));
+      pos = end + 1;
+      if (!c || c->dims.size() != 2) continue;
+      if (is_latitude(f, *c)) lat2d = c;
+      if (is_longitude(f, *c)) lon2d = c;
+    }
+    if (lat2d && lon2d && lat2d->dims != lon2d->dims) {
+      throw InputError(where,
+                       "2-D latitude " + quoted(lat2d->name) + " and longitude " +
+                           quoted(lon2d->name) + " on different dimensions",
+                       "2-D latitude and longitude on the same (y, x) dimensions");
+    }
+    if (!lat2d || !lon2d) lat2d = lon2d = nullptr;
+  }
   std::vector<std::string> layout;
 
   // The station (instance) dimension, from the cf_role variable (CF Appendix H.2).
@@ -527,6 +565,10 @@ Selection select(const File& f, const Var& v, const NetcdfMetOptions& opt, const
       }
       s.start[k] = pick;
       layout.push_back("member " + std::to_string(values.at(pick)));
+    } else if (lat2d && d == lat2d->dims[0]) {
+      lat_pos = static_cast<int>(k);
+    } else if (lat2d && d == lat2d->dims[1]) {
+      lon_pos = static_cast<int>(k);
     } else if (coord && is_latitude(f, *coord)) {
       lat_pos = static_cast<int>(k);
       lat_var = coord;
@@ -551,7 +593,8 @@ Selection select(const File& f, const Var& v, const NetcdfMetOptions& opt, const
   if ((lat_pos >= 0) != (lon_pos >= 0)) {
     throw InputError(where,
                      "dimensions " + f.dims_text(v) + " with only one of latitude and longitude",
-                     "both a latitude and a longitude dimension, or neither");
+                     "both a latitude and a longitude dimension (or both dimensions of 2-D "
+                     "latitude and longitude), or neither");
   }
   if (lat_pos < 0 && opt.station_id && station_dim < 0) {
     // A single time series: its id, when it has one, must be the one asked for.
@@ -596,9 +639,34 @@ Selection select(const File& f, const Var& v, const NetcdfMetOptions& opt, const
     return s;
   }
 
-  const auto lats = f.read_all(*lat_var);
-  const auto lons = f.read_all(*lon_var);
-  const std::size_t nlat = lats.size(), nlon = lons.size();
+  // Cell centres: index a runs along the first grid dimension (latitude or y), b the second.
+  std::vector<double> lats, lons;
+  std::size_t na = 0, nb = 0;
+  const bool curvilinear = lat2d != nullptr;
+  if (curvilinear) {
+    lats = f.read_all(*lat2d);
+    lons = f.read_all(*lon2d);
+    na = f.dim_len(lat2d->dims[0]);
+    nb = f.dim_len(lat2d->dims[1]);
+  } else {
+    const auto la = f.read_all(*lat_var);
+    const auto lo = f.read_all(*lon_var);
+    na = la.size();
+    nb = lo.size();
+    for (std::size_t i = 0; i < na; ++i) {
+      for (std::size_t j = 0; j < nb; ++j) {
+        lats.push_back(la[i]);
+        lons.push_back(lo[j]);
+      }
+    }
+  }
+  const auto extent = [&]() {
+    const auto [la0, la1] = std::minmax_element(lats.begin(), lats.end());
+    std::vector<double> w(lons.size());
+    std::transform(lons.begin(), lons.end(), w.begin(), wrap180);
+    const auto [lo0, lo1] = std::minmax_element(w.begin(), w.end());
+    return "grid lat " + fmt(*la0) + ".." + fmt(*la1) + ", lon " + fmt(*lo0) + ".." + fmt(*lo1);
+  };
   std::vector<std::pair<std::size_t, std::size_t>> chosen;
   std::vector<double> weights;
   if (opt.point && opt.footprint) {
@@ -611,56 +679,53 @@ Selection select(const File& f, const Var& v, const NetcdfMetOptions& opt, const
                        "latitude -90..90 degrees north and a finite longitude");
     }
     double best = std::numeric_limits<double>::infinity();
-    std::pair<std::size_t, std::size_t> bi{0, 0};
-    for (std::size_t i = 0; i < nlat; ++i) {
-      for (std::size_t j = 0; j < nlon; ++j) {
-        const double a = central_angle(plat, plon, lats[i], lons[j]);
-        if (a < best) {
-          best = a;
-          bi = {i, j};
-        }
+    std::size_t bi = 0;
+    for (std::size_t c = 0; c < lats.size(); ++c) {
+      const double ang = central_angle(plat, plon, lats[c], lons[c]);
+      if (ang < best) {
+        best = ang;
+        bi = c;
       }
     }
-    chosen.push_back(bi);
+    chosen.emplace_back(bi / nb, bi % nb);
     weights.push_back(1.0);
     layout.push_back("grid cell nearest to " + fmt(plat) + "N " + fmt(plon) + "E: lat " +
-                     fmt(lats[bi.first]) + ", lon " + fmt(lons[bi.second]) + " (" +
-                     fmt(best * 6371.0088) + " km away)");
+                     fmt(lats[bi]) + ", lon " + fmt(lons[bi]) + " (" + fmt(best * 6371.0088) +
+                     " km away)");
   } else if (opt.footprint) {
-    const auto& b = *opt.footprint;
-    const double w0 = wrap180(b.lon_min_deg), w1 = wrap180(b.lon_max_deg);
-    for (std::size_t i = 0; i < nlat; ++i) {
-      if (!(lats[i] >= b.lat_min_deg && lats[i] <= b.lat_max_deg)) continue;
-      for (std::size_t j = 0; j < nlon; ++j) {
-        const double lo = wrap180(lons[j]);
-        const bool inside = w0 <= w1 ? (lo >= w0 && lo <= w1) : (lo >= w0 || lo <= w1);
-        if (!inside) continue;
-        chosen.emplace_back(i, j);
-        weights.push_back(std::cos(lats[i] * std::numbers::pi / 180.0));
-      }
+    const auto& bx = *opt.footprint;
+    const double w0 = wrap180(bx.lon_min_deg), w1 = wrap180(bx.lon_max_deg);
+    for (std::size_t c = 0; c < lats.size(); ++c) {
+      if (!(lats[c] >= bx.lat_min_deg && lats[c] <= bx.lat_max_deg)) continue;
+      const double lo = wrap180(lons[c]);
+      const bool inside = w0 <= w1 ? (lo >= w0 && lo <= w1) : (lo >= w0 || lo <= w1);
+      if (!inside) continue;
+      chosen.emplace_back(c / nb, c % nb);
+      // A regular lat/lon cell's area is proportional to cos(latitude); the cells of a projected
+      // (curvilinear) grid are close to equal in area, so they weigh the same.
+      weights.push_back(curvilinear ? 1.0 : std::cos(lats[c] * std::numbers::pi / 180.0));
     }
     if (chosen.empty()) {
       throw InputError(where,
-                       "no grid cell centre inside the footprint lat " + fmt(b.lat_min_deg) + ".." +
-                           fmt(b.lat_max_deg) + ", lon " + fmt(b.lon_min_deg) + ".." +
-                           fmt(b.lon_max_deg) + " (grid lat " + fmt(lats.front()) + ".." +
-                           fmt(lats.back()) + ", lon " + fmt(lons.front()) + ".." +
-                           fmt(lons.back()) + ")",
+                       "no grid cell centre inside the footprint lat " + fmt(bx.lat_min_deg) +
+                           ".." + fmt(bx.lat_max_deg) + ", lon " + fmt(bx.lon_min_deg) + ".." +
+                           fmt(bx.lon_max_deg) + " (" + extent() + ")",
                        "a footprint that contains at least one cell centre");
     }
     layout.push_back("mean over " + std::to_string(chosen.size()) +
-                     " grid cells in the footprint (cos-latitude weights)");
-  } else if (nlat * nlon == 1) {
+                     " grid cells in the footprint (" +
+                     (curvilinear ? "equal weights" : "cos-latitude weights") + ")");
+  } else if (na * nb == 1) {
     chosen.emplace_back(0, 0);
     weights.push_back(1.0);
     layout.push_back("the single grid cell");
   } else {
     throw InputError(where,
-                     "a grid of " + std::to_string(nlat) + " x " + std::to_string(nlon) +
+                     "a grid of " + std::to_string(na) + " x " + std::to_string(nb) +
                          " cells and neither a point nor a footprint",
                      "a point (--point LAT,LON) or a footprint (lat/lon box)");
   }
-  std::size_t i0 = nlat, i1 = 0, j0 = nlon, j1 = 0;
+  std::size_t i0 = na, i1 = 0, j0 = nb, j1 = 0;
   for (auto [i, j] : chosen) {
     i0 = std::min(i0, i);
     i1 = std::max(i1, i);
@@ -1139,6 +1204,7 @@ const std::vector<std::string>& netcdf_met_roles() {
 MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
                           NetcdfReadInfo* info) {
   const File f(path);
+  refuse_ragged(f);
   const auto& known = netcdf_met_roles();
   for (const auto& [r, name] : opt.variables) {
     if (std::find(known.begin(), known.end(), r) == known.end()) {
@@ -1306,6 +1372,7 @@ std::vector<std::pair<std::string, HourlySeries>> read_concentrations_netcdf(
     const std::string& path, const NetcdfMetOptions& opt,
     const std::vector<std::string>& variables) {
   const File f(path);
+  refuse_ragged(f);
   std::vector<std::pair<std::string, const Var*>> chosen;
   if (!variables.empty()) {
     for (const auto& name : variables) {

@@ -628,3 +628,61 @@ TEST_CASE("a half wind, a foreign time axis and an unknown role are refused by n
             "eastward_wind, northward_wind, wind_speed, wind_from_direction, air_temperature, "
             "surface_pressure, time");
 }
+
+TEST_CASE("a curvilinear grid is read through its 2-D latitude and longitude") {
+  const std::string path = scratch_dir("curvilinear") + "/c.nc";
+  {
+    NcWriter w(path);
+    const int td = w.dim("time", 2);
+    const int yd = w.dim("y", 2);
+    const int xd = w.dim("x", 3);
+    const int t = w.var("time", NC_DOUBLE, {td}, "time", "hours since 2026-01-05");
+    const int la = w.var("nav_lat", NC_DOUBLE, {yd, xd}, "latitude", "degrees_north");
+    const int lo = w.var("nav_lon", NC_DOUBLE, {yd, xd}, "longitude", "degrees_east");
+    const int h = w.var("blh", NC_FLOAT, {td, yd, xd}, "atmosphere_boundary_layer_thickness", "m");
+    w.text(h, "coordinates", "nav_lat nav_lon");
+    const int u = w.var("u", NC_FLOAT, {td}, "eastward_wind", "m s-1");
+    const int v = w.var("v", NC_FLOAT, {td}, "northward_wind", "m s-1");
+    w.end_define();
+    w.put(t, {0, 1});
+    // A sheared grid: each row's longitudes shift by 0.3 deg (a projection's look).
+    w.put(la, {45.0, 45.1, 45.2, 45.5, 45.6, 45.7});
+    w.put(lo, {7.0, 7.5, 8.0, 7.3, 7.8, 8.3});
+    std::vector<double> hv;
+    for (int k = 0; k < 2; ++k) {
+      for (int c = 0; c < 6; ++c) hv.push_back(100.0 * (c + 1) + k);
+    }
+    w.put(h, hv);
+    w.put(u, {1, 1});
+    w.put(v, {0, 0});
+  }
+  NetcdfMetOptions opt;
+  opt.point = LatLon{45.58, 7.75};  // nearest centre: row 1, column 1 (45.6 N, 7.8 E)
+  NetcdfReadInfo info;
+  const MetSeries m = read_met_netcdf(path, opt, &info);
+  CHECK(m.mixing_height_m[0] == doctest::Approx(500.0));
+  CHECK(m.mixing_height_m[1] == doctest::Approx(501.0));
+  opt.point.reset();
+  opt.footprint = LatLonBox{45.05, 45.65, 7.2, 7.9};  // (45.1, 7.5), (45.5, 7.3), (45.6, 7.8)
+  const MetSeries f = read_met_netcdf(path, opt, &info);
+  CHECK(f.mixing_height_m[0] == doctest::Approx((200.0 + 400.0 + 500.0) / 3.0));  // equal weights
+  CHECK(info.layout == "mean over 3 grid cells in the footprint (equal weights)");
+}
+
+TEST_CASE("a ragged station layout is refused with the layouts lidbox reads") {
+  const std::string path = scratch_dir("ragged") + "/r.nc";
+  {
+    NcWriter w(path);
+    const int sd = w.dim("station", 2);
+    const int od = w.dim("obs", 5);
+    const int rs = w.var("row_size", NC_INT, {sd});
+    w.text(rs, "sample_dimension", "obs");
+    (void)w.var("time", NC_DOUBLE, {od}, "time", "hours since 2026-01-05");
+    (void)w.var("blh", NC_FLOAT, {od}, "atmosphere_boundary_layer_thickness", "m");
+  }
+  CHECK(error_of(path) == path +
+                              ": a ragged-array layout (variable \"row_size\" has "
+                              "sample_dimension, CF Appendix H.2.4/H.2.5); expected a single time "
+                              "series or the orthogonal layout X(station, time) (CF Appendix "
+                              "H.2.1, H.4)");
+}

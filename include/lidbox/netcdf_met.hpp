@@ -31,14 +31,17 @@
 //                        picks the member by its coordinate value (by 0-based index when there
 //                        is no coordinate variable); required when more than one
 //   latitude/longitude   dimensions of 1-D coordinates (standard_name latitude/longitude, or
-//                        units degrees_north/degrees_east): the nearest cell centre to
-//                        options.point (great-circle distance), or the mean over the cells whose
-//                        centres fall inside options.footprint, weighted by cos(latitude) (the
-//                        relative area of a regular lat/lon cell); wind is averaged by
-//                        components. A footprint hour with any cell missing is missing (the
-//                        footprint never silently shrinks). A 1-cell grid needs neither option.
+//                        units degrees_north/degrees_east), or the (y, x) dimensions of 2-D
+//                        latitude and longitude named in the variable's `coordinates` attribute
+//                        (CF 5.2, a curvilinear grid): the nearest cell centre to options.point
+//                        (great-circle distance), or the mean over the cells whose centres fall
+//                        inside options.footprint, weighted by cos(latitude) on a lat/lon grid
+//                        (the relative area of its cells) and equally on a curvilinear grid
+//                        (near-equal cells of a projection); wind is averaged by components. A
+//                        footprint hour with any cell missing is missing (the footprint never
+//                        silently shrinks). A 1-cell grid needs neither option.
 //   any other dimension  only of length 1 (a single height level, for example)
-// Ragged station layouts and 2-D (curvilinear) latitude/longitude are refused.
+// Ragged station layouts (CF H.2.4, H.2.5: sample_dimension, instance_dimension) are refused.
 //
 // Time axis: decoded by cf_time.hpp. The step is the smallest difference between stamps; every
 // difference must be a whole multiple of it (absent records become NaN gaps for fill_gaps).
