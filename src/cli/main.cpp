@@ -11,7 +11,8 @@
 int main(int argc, char** argv) {
   CLI::App app{std::string("lidbox ") + LIDBOX_VERSION +
                ": hour-by-hour box balance of an urban airshed (mixing height, wind, emissions, "
-               "residual layer) with its mass budget.\n" + lidbox::kScreeningCaution};
+               "residual layer) with its mass budget.\n" +
+               lidbox::kScreeningCaution};
   app.set_version_flag("--version", std::string("lidbox ") + LIDBOX_VERSION);
   app.require_subcommand(1);
   int exit_code = 0;

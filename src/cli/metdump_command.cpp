@@ -137,16 +137,16 @@ void dump_concentrations(const MetDumpArgs& a) {
 void add_met_dump_command(CLI::App& app, int& exit_code) {
   auto args = std::make_shared<MetDumpArgs>();
   CLI::App* sub = app.add_subcommand(
-      "met-dump", "show the hourly met (or concentrations) lidbox reads from a NetCDF file");
+      "met-dump", "Show the hourly met (or concentrations) lidbox reads from a NetCDF file");
   sub->group("");  // diagnostic: kept out of the main help
   sub->add_option("file", args->input, "CF-NetCDF input file")->required();
   add_netcdf_options(*sub, args->nc);
   sub->add_flag("--concentrations", args->concentrations,
-                "read the observed concentration variables instead of met");
+                "Read the observed concentration variables instead of met");
   sub->add_option("--fill-gaps", args->fill_gaps_hours,
-                  "fill gaps of up to this many hours and check the met (as a run does)");
-  sub->add_option("--to-netcdf", args->to_netcdf, "write through the CF writer instead of CSV");
-  sub->add_flag("--netcdf3", args->netcdf3, "write NetCDF-3 (64-bit offset) instead of NetCDF-4");
+                  "Fill gaps of up to this many hours and check the met (as a run does)");
+  sub->add_option("--to-netcdf", args->to_netcdf, "Write through the CF writer instead of CSV");
+  sub->add_flag("--netcdf3", args->netcdf3, "Write NetCDF-3 (64-bit offset) instead of NetCDF-4");
   sub->callback([args, &exit_code, sub] {
     args->command_line = "lidbox met-dump " + args->input;
     for (const CLI::Option* o : sub->get_options()) {

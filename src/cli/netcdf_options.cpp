@@ -40,16 +40,18 @@ std::pair<std::string, std::string> key_value(const std::string& text, const std
 }  // namespace
 
 void add_netcdf_options(CLI::App& app, NetcdfOptionTexts& t) {
-  app.add_option("--station", t.station, "station id (cf_role timeseries_id) in a station file");
+  app.add_option("--station", t.station, "Station id (cf_role timeseries_id) in a station file");
   app.add_option("--point", t.point, "LAT,LON: the grid cell nearest to this point [deg N, deg E]");
   app.add_option("--footprint", t.footprint,
                  "LATMIN,LATMAX,LONMIN,LONMAX: mean over the grid cells inside [deg]");
-  app.add_option("--member", t.member, "ensemble member (its realization value)");
+  app.add_option("--member", t.member, "Ensemble member (its realization value)");
   app.add_option("--map", t.maps, "ROLE=VARIABLE: take a role from a named variable");
   app.add_option("--extra", t.extras,
                  "COLUMN=VARIABLE: an extra series (by name or standard_name)");
-  app.add_option("--sub-hourly", t.sub_hourly, "hour_mean (default), on_the_hour or refuse");
-  app.add_option("--coarse", t.coarse, "refuse (default) or linear: steps longer than an hour");
+  app.add_option("--sub-hourly", t.sub_hourly,
+                 "Sub-hourly rule: hour_mean (default), on_the_hour or refuse");
+  app.add_option("--coarse", t.coarse,
+                 "Coarse-step rule: refuse (default) or linear, for steps longer than an hour");
 }
 
 NetcdfMetOptions netcdf_met_options(const NetcdfOptionTexts& t) {

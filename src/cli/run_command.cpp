@@ -21,7 +21,8 @@ struct RunOptions {
 
 void add_run_command(CLI::App& app, int& exit_code) {
   auto opt = std::make_shared<RunOptions>();
-  CLI::App* run = app.add_subcommand("run", "Run a case: integrate the box hour by hour and write its tables");
+  CLI::App* run =
+      app.add_subcommand("run", "Run a case: integrate the box hour by hour and write its tables");
   run->add_option("case", opt->case_file, "Case file (TOML)")->required();
   run->add_option("-o,--output", opt->output_dir, "Output folder (default: outputs/<case name>)");
   run->add_flag("-q,--quiet", opt->quiet, "Print nothing on success");
@@ -29,7 +30,8 @@ void add_run_command(CLI::App& app, int& exit_code) {
     const CaseSpec c = load_case(opt->case_file);
     const MetSeries met = read_case_met(c);
     Progress progress;
-    const RunResult r = run_case(c, met, [&progress](double f, const char* stage) { progress.update(f, stage); });
+    const RunResult r =
+        run_case(c, met, [&progress](double f, const char* stage) { progress.update(f, stage); });
     progress.finish();
     const auto files = render_run_outputs(c, met, r);
     const std::string dir = opt->output_dir.empty() ? c.output_directory : opt->output_dir;
