@@ -66,15 +66,17 @@ struct Var {
 
 class File {
  public:
-  explicit File(const std::string& path) : path_(path) {
+  // `shown_as` names the file in messages ("" = the path).
+  File(const std::string& path, const std::string& shown_as)
+      : path_(shown_as.empty() ? path : shown_as) {
     std::error_code ec;
     if (!std::filesystem::exists(path, ec)) {
-      throw InputError(path, "no such file", "an existing NetCDF file");
+      throw InputError(path_, "no such file", "an existing NetCDF file");
     }
     const int st = nc_open(path.c_str(), NC_NOWRITE, &id_);
     if (st != NC_NOERR) {
       id_ = -1;
-      throw InputError(path, std::string("not readable as NetCDF (") + nc_strerror(st) + ")",
+      throw InputError(path_, std::string("not readable as NetCDF (") + nc_strerror(st) + ")",
                        "a NetCDF-3 or NetCDF-4 file");
     }
     int ndims = 0, nvars = 0;
@@ -106,7 +108,7 @@ class File {
     if (id_ >= 0) nc_close(id_);
   }
 
-  [[nodiscard]] const std::string& path() const { return path_; }
+  [[nodiscard]] const std::string& path() const { return path_; }  // as named in messages
   [[nodiscard]] int id() const { return id_; }
   [[nodiscard]] const std::vector<Var>& vars() const { return vars_; }
   [[nodiscard]] const std::string& dim_name(int d) const { return dim_names_.at(d); }
@@ -1203,7 +1205,7 @@ const std::vector<std::string>& netcdf_met_roles() {
 
 MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
                           NetcdfReadInfo* info) {
-  const File f(path);
+  const File f(path, opt.display_name);
   refuse_ragged(f);
   const auto& known = netcdf_met_roles();
   for (const auto& [r, name] : opt.variables) {
@@ -1217,14 +1219,15 @@ MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
           hint = "; did you mean " + quoted(k) + "?";
         }
       }
-      throw InputError(path, "unknown variable role " + quoted(r) + hint, "one of " + join(known));
+      throw InputError(f.path(), "unknown variable role " + quoted(r) + hint,
+                       "one of " + join(known));
     }
   }
   const Var* mapped_time = nullptr;
   if (auto it = opt.variables.find("time"); it != opt.variables.end()) {
     mapped_time = f.find(it->second);
     if (!mapped_time) {
-      throw InputError(path,
+      throw InputError(f.path(),
                        "variable " + quoted(it->second) + " (mapped to the time) not found" +
                            present_and_hint(f, {it->second}),
                        "one of the variables present");
@@ -1300,14 +1303,14 @@ MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
       const auto found = by_standard_name(f, wanted);
       if (found.size() == 1) ev = found[0];
       if (found.size() > 1) {
-        throw InputError(path,
+        throw InputError(f.path(),
                          "several variables with standard_name " + quoted(wanted) + " for column " +
                              quoted(column),
                          "one, or the variable named");
       }
     }
     if (!ev) {
-      throw InputError(path,
+      throw InputError(f.path(),
                        "no variable or standard_name " + quoted(wanted) + " for column " +
                            quoted(column) + present_and_hint(f, {wanted}),
                        "a variable name or a CF standard_name present in the file");
@@ -1334,7 +1337,7 @@ MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
   }
   Hourly hr = to_hourly(f, loaded[0].axis, cols, opt.sub_hourly, opt.coarse);
   MetSeries m;
-  m.source = path;
+  m.source = f.path();
   m.first_stamp_utc = hr.first;
   m.mixing_height_m = std::move(hr.columns[0]);
   m.wind_u_m_s = std::move(hr.columns[1]);
@@ -1371,14 +1374,14 @@ MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
 std::vector<std::pair<std::string, HourlySeries>> read_concentrations_netcdf(
     const std::string& path, const NetcdfMetOptions& opt,
     const std::vector<std::string>& variables) {
-  const File f(path);
+  const File f(path, opt.display_name);
   refuse_ragged(f);
   std::vector<std::pair<std::string, const Var*>> chosen;
   if (!variables.empty()) {
     for (const auto& name : variables) {
       const Var* v = f.find(name);
       if (!v) {
-        throw InputError(path,
+        throw InputError(f.path(),
                          "variable " + quoted(name) + " not found" + present_and_hint(f, {name}),
                          "one of the variables present");
       }
@@ -1391,7 +1394,7 @@ std::vector<std::pair<std::string, HourlySeries>> read_concentrations_netcdf(
     if (chosen.empty()) {
       std::vector<std::string> probes;
       for (const auto& [k, names] : concentration_standard_names()) probes.push_back(names[0]);
-      throw InputError(path,
+      throw InputError(f.path(),
                        "no concentration variable (CF standard_name "
                        "mass_concentration_of_..._in_air or mole_fraction_of_..._in_air)" +
                            present_and_hint(f, probes),

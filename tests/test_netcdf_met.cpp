@@ -686,3 +686,17 @@ TEST_CASE("a ragged station layout is refused with the layouts lidbox reads") {
                               "series or the orthogonal layout X(station, time) (CF Appendix "
                               "H.2.1, H.4)");
 }
+
+TEST_CASE("a display name stands for the path in messages and in the series' source") {
+  const std::string path = write_stations(scratch_dir("display"));
+  NetcdfMetOptions opt;
+  opt.display_name = "met/stations.nc";
+  CHECK(error_of(path, opt) ==
+        "met/stations.nc: variable \"station_name\": 3 stations (north, centre, south) and no "
+        "station chosen; expected a station id (--station or [met] station)");
+  opt.station_id = "south";
+  CHECK(read_met_netcdf(path, opt).source == "met/stations.nc");
+  opt.display_name = "absent.nc";
+  CHECK(error_of(path + ".missing", opt) ==
+        "absent.nc: no such file; expected an existing NetCDF file");
+}

@@ -105,6 +105,9 @@ CoarseStepRule parse_coarse_step_rule(std::string_view text, std::string_view wh
 const std::vector<std::string>& netcdf_met_roles();
 
 struct NetcdfMetOptions {
+  // Names the file in messages and in MetSeries::source, e.g. as the case file writes it
+  // ("" = the path as given).
+  std::string display_name;
   // role -> variable name; roles as listed above. Unknown roles are an InputError.
   std::map<std::string, std::string> variables;
   // Extra columns for MetSeries::extra (a background concentration, for example):
