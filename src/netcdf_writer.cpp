@@ -8,6 +8,7 @@
 #include <cctype>
 #include <chrono>
 #include <cmath>
+#include <cstdio>
 #include <cstdlib>
 #include <filesystem>
 #include <set>
@@ -281,6 +282,62 @@ std::string render_cf_timeseries(const CfTable& table, CfFileFormat format) {
     if (nc >= 0) nc_close(nc);
     throw InternalError("NetCDF in memory: " + e.what);
   }
+}
+
+CfTable daily_cf_table(const std::vector<CfDailySeries>& series, int lst_offset_s) {
+  CfTable t;
+  t.period_s = kSecondsPerDay;
+  bool any = false;
+  std::int64_t d0 = 0, d1 = 0;
+  for (const auto& s : series) {
+    if (!s.valid_count.empty() && s.valid_count.size() != s.values.size()) {
+      throw InternalError("daily series \"" + s.name + "\" with mismatched valid counts");
+    }
+    if (s.values.empty()) continue;
+    const std::int64_t last = s.first_day + static_cast<std::int64_t>(s.values.size()) - 1;
+    d0 = any ? std::min(d0, s.first_day) : s.first_day;
+    d1 = any ? std::max(d1, last) : last;
+    any = true;
+  }
+  if (!any) throw InternalError("daily table without days");
+  const auto n = static_cast<std::size_t>(d1 - d0 + 1);
+  for (std::size_t i = 0; i < n; ++i) {
+    t.time_utc.push_back((d0 + static_cast<std::int64_t>(i)) * kSecondsPerDay - lst_offset_s);
+  }
+  for (const auto& s : series) {
+    CfVariable v;
+    v.name = s.name;
+    v.standard_name = s.standard_name;
+    v.long_name = s.long_name;
+    v.units = s.units;
+    v.cell_methods = s.cell_methods;
+    v.comment = s.comment;
+    v.values.assign(n, std::nan(""));
+    CfVariable c;
+    if (!s.valid_count.empty()) {
+      c.name = s.name + "_valid_count";
+      c.long_name = "hours (or windows) present for " + s.name;
+      c.units = "1";
+      c.attributes["possible_count"] = std::to_string(s.possible_count);
+      c.values.assign(n, 0.0);
+      v.attributes["ancillary_variables"] = c.name;  // CF 3.4
+    }
+    for (std::size_t k = 0; k < s.values.size(); ++k) {
+      const auto row = static_cast<std::size_t>(s.first_day - d0) + k;
+      v.values[row] = s.values[k];
+      if (!s.valid_count.empty()) c.values[row] = s.valid_count[k];
+    }
+    t.vars.push_back(std::move(v));
+    if (!s.valid_count.empty()) t.vars.push_back(std::move(c));
+  }
+  const int a = lst_offset_s < 0 ? -lst_offset_s : lst_offset_s;
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "UTC%c%02d:%02d", lst_offset_s < 0 ? '-' : '+', a / 3600,
+                (a % 3600) / 60);
+  t.global_attributes["local_standard_time"] = buf;
+  t.global_attributes["day_definition"] =
+      "days are local standard time days (no daylight saving); time is the day's start";
+  return t;
 }
 
 CfTable met_cf_table(const MetSeries& met) {

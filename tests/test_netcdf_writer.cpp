@@ -221,3 +221,42 @@ TEST_CASE("the in-memory rendering is a NetCDF file with the same content") {
   bad.time_utc[1] = bad.time_utc[0];
   CHECK_THROWS_AS(render_cf_timeseries(bad), InternalError);
 }
+
+TEST_CASE("daily values land on local-standard-time days with their valid counts") {
+  CfDailySeries mean;
+  mean.name = "PM25_daily_mean";
+  mean.standard_name = "mass_concentration_of_pm2p5_ambient_aerosol_particles_in_air";
+  mean.units = "ug m-3";
+  mean.cell_methods = "time: mean (interval: 1 hour)";
+  mean.first_day = 20458;  // 2026-01-05
+  mean.values = {12.5, std::nan(""), 30.0};
+  mean.valid_count = {24, 10, 20};
+  mean.possible_count = 24;
+  CfDailySeries peak;
+  peak.name = "PM25_daily_max_1h";
+  peak.units = "ug m-3";
+  peak.cell_methods = "time: maximum";
+  peak.first_day = 20459;
+  peak.values = {55.0, 61.0, 40.0};
+  const CfTable t = daily_cf_table({mean, peak}, -7 * 3600);
+  REQUIRE(t.time_utc.size() == 4);  // 2026-01-05 .. 2026-01-08
+  // LST midnight at UTC-7 is 07:00 UTC (closed form).
+  CHECK(format_utc(t.time_utc[0]) == "2026-01-05T07:00:00Z");
+  CHECK(t.period_s == 86400);
+  CHECK(t.global_attributes.at("local_standard_time") == "UTC-07:00");
+  const std::string path = scratch_dir("writer-daily") + "/daily.nc";
+  write_cf_timeseries(path, t);
+  NcReader r(path);
+  CHECK(r.text("time", "units") == "hours since 2026-01-05 07:00:00 +00:00");
+  CHECK(r.values("time_bnds", 8) ==
+        std::vector<double>{0.0, 24.0, 24.0, 48.0, 48.0, 72.0, 72.0, 96.0});
+  const auto m = r.values("PM25_daily_mean", 4);
+  CHECK(m[0] == 12.5);
+  CHECK(m[1] == NC_FILL_DOUBLE);
+  CHECK(m[3] == NC_FILL_DOUBLE);  // the mean series ends a day before the maximum
+  CHECK(r.values("PM25_daily_mean_valid_count", 4) == std::vector<double>{24.0, 10.0, 20.0, 0.0});
+  CHECK(r.text("PM25_daily_mean", "ancillary_variables") == "PM25_daily_mean_valid_count");
+  const auto p = r.values("PM25_daily_max_1h", 4);
+  CHECK(p[0] == NC_FILL_DOUBLE);
+  CHECK(p[1] == 55.0);
+}

@@ -28,6 +28,7 @@
 // an InputError naming the path; a malformed table (lengths, names, times) is an InternalError.
 #pragma once
 
+#include <cstdint>
 #include <map>
 #include <optional>
 #include <string>
@@ -80,6 +81,27 @@ void write_cf_timeseries(const std::string& path, const CfTable& table,
 // A malformed table is an InternalError, as above.
 std::string render_cf_timeseries(const CfTable& table,
                                  CfFileFormat format = CfFileFormat::netcdf4_classic);
+
+// Daily values on local-standard-time (LST) days, for daily statistics tables. The rows are the
+// days present in any series; a day's time is its LST midnight as a UTC instant and its bounds
+// span 24 h (LST has no daylight saving, so every day is 86400 s).
+struct CfDailySeries {
+  std::string name;  // CF variable name, e.g. "PM25_daily_mean"
+  std::string standard_name;
+  std::string long_name;
+  std::string units;
+  std::string cell_methods;  // e.g. "time: mean (interval: 1 hour)", "time: maximum"
+  std::string comment;
+  std::int64_t first_day = 0;    // LST days since 1970-01-01 of values[0]
+  std::vector<double> values;    // NaN when missing
+  std::vector<int> valid_count;  // empty, or one per value: written as <name>_valid_count
+  int possible_count = 0;        // hours (or windows) a full day has, with valid_count
+};
+
+// The table for write_cf_timeseries/render_cf_timeseries: `lst_offset_s` is the standard offset
+// east of UTC; the global attribute local_standard_time names it ("UTC-07:00"). The caller adds
+// title, history and station fields. InternalError for mismatched lengths.
+CfTable daily_cf_table(const std::vector<CfDailySeries>& series, int lst_offset_s);
 
 // A text as a CF variable name (CF 2.3): other characters become '_', and a leading non-letter
 // gets an 'x' in front ("2m temp" -> "x2m_temp", "PM2.5" -> "PM2_5").
