@@ -1234,8 +1234,12 @@ MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
     }
   }
   const Var* h = find_role(f, opt, role("mixing_height"), true);
-  const Var* u = find_role(f, opt, role("eastward_wind"), false);
-  const Var* v = find_role(f, opt, role("northward_wind"), false);
+  // Components unless the caller mapped only the speed/direction form.
+  const auto mapped = [&](const char* r) { return opt.variables.count(r) > 0; };
+  const bool speed_form = (mapped("wind_speed") || mapped("wind_from_direction")) &&
+                          !mapped("eastward_wind") && !mapped("northward_wind");
+  const Var* u = speed_form ? nullptr : find_role(f, opt, role("eastward_wind"), false);
+  const Var* v = speed_form ? nullptr : find_role(f, opt, role("northward_wind"), false);
   const Var* ws = nullptr;
   const Var* wd = nullptr;
   if (!u || !v) {

@@ -137,6 +137,32 @@ TEST_CASE("speed and direction become components and single-level dimensions are
   CHECK(m.air_temperature_K.empty());
 }
 
+TEST_CASE("mapping the speed form chooses it over components in the same file") {
+  const std::string path = scratch_dir("both-forms") + "/w.nc";
+  {
+    NcWriter w(path);
+    const int td = w.dim("time", 1);
+    const int t = w.var("time", NC_DOUBLE, {td}, "time", "hours since 2026-01-05");
+    const int h = w.var("h", NC_FLOAT, {td}, "atmosphere_boundary_layer_thickness", "m");
+    const int u = w.var("u", NC_FLOAT, {td}, "eastward_wind", "m s-1");
+    const int v = w.var("v", NC_FLOAT, {td}, "northward_wind", "m s-1");
+    const int s = w.var("ws100", NC_FLOAT, {td}, "wind_speed", "m s-1");
+    const int d = w.var("wd100", NC_FLOAT, {td}, "wind_from_direction", "degree");
+    w.end_define();
+    for (const auto& [var, x] :
+         {std::pair{t, 0.0}, {h, 500.0}, {u, 1.0}, {v, 1.0}, {s, 4.0}, {d, 270.0}}) {
+      w.put(var, {x});
+    }
+  }
+  CHECK(read_met_netcdf(path, {}).wind_u_m_s[0] == doctest::Approx(1.0));  // components
+  NetcdfMetOptions opt;
+  opt.variables["wind_speed"] = "ws100";
+  // From 270 deg (west) at 4 m/s: u = +4, v = 0 (WMO-No. 8).
+  const MetSeries m = read_met_netcdf(path, opt);
+  CHECK(m.wind_u_m_s[0] == doctest::Approx(4.0));
+  CHECK(std::fabs(m.wind_v_m_s[0]) < 1e-12);
+}
+
 namespace {
 std::string write_stations(const std::string& dir) {
   const std::string path = dir + "/stations.nc";

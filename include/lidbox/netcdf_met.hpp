@@ -12,7 +12,8 @@
 //   air_temperature      air_temperature                        (optional)            -> K
 //   surface_pressure     surface_air_pressure                   (optional)            -> Pa
 //   time                 the coordinate variable of the data's time dimension
-// Components are preferred when both wind forms are present.
+// Components are preferred when both wind forms are present, unless the caller maps only
+// wind_speed and/or wind_from_direction.
 //
 // Values (CF Conventions 8.1 and 2.5.1): _FillValue and missing_value (compared with the packed
 // values), values outside valid_min/valid_max/valid_range, and the NetCDF default fill value
