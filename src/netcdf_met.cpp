@@ -887,6 +887,7 @@ std::vector<double> cell_mean(const std::vector<std::vector<double>>& cells,
 struct TimeAxis {
   std::vector<UtcSeconds> t;
   std::string variable;
+  std::string bounds_label;  // NetcdfReadInfo::time_bounds_label
 };
 
 TimeAxis read_time(const File& f, const Selection& s, const Var* mapped_time,
@@ -916,18 +917,21 @@ TimeAxis read_time(const File& f, const Selection& s, const Var* mapped_time,
     }
     axis.t.push_back(decode_cf_time(tu, x, where));
   }
-  if (use_bounds_start) {
-    // CF 7.1: a bounds variable (time, 2) gives each cell's start and end; hour means are
-    // labelled by their start in an HourlySeries.
-    if (auto bname = f.text_att(tv->id, "bounds")) {
-      const Var* bv = f.find(*bname);
-      if (bv && bv->dims.size() == 2 && f.dim_len(bv->dims[1]) == 2 &&
-          f.dim_len(bv->dims[0]) == raw.size()) {
-        const auto b = f.read_all(*bv);
-        for (std::size_t i = 0; i < raw.size(); ++i) {
-          axis.t[i] = decode_cf_time(tu, std::min(b[2 * i], b[2 * i + 1]), f.where(*bv));
-        }
+  // CF 7.1: a bounds variable (time, 2) gives each cell's start and end. Hour means are labelled
+  // by their start in an HourlySeries (use_bounds_start); for met the stamps stay and the caller
+  // learns which end they mark.
+  if (auto bname = f.text_att(tv->id, "bounds")) {
+    const Var* bv = f.find(*bname);
+    if (bv && bv->dims.size() == 2 && f.dim_len(bv->dims[1]) == 2 &&
+        f.dim_len(bv->dims[0]) == raw.size() && !raw.empty()) {
+      const auto b = f.read_all(*bv);
+      std::vector<UtcSeconds> lo(raw.size()), hi(raw.size());
+      for (std::size_t i = 0; i < raw.size(); ++i) {
+        lo[i] = decode_cf_time(tu, std::min(b[2 * i], b[2 * i + 1]), f.where(*bv));
+        hi[i] = decode_cf_time(tu, std::max(b[2 * i], b[2 * i + 1]), f.where(*bv));
       }
+      axis.bounds_label = lo == axis.t ? "period_start" : hi == axis.t ? "period_end" : "other";
+      if (use_bounds_start) axis.t = lo;
     }
   }
   for (std::size_t i = 1; i < axis.t.size(); ++i) {
@@ -1371,6 +1375,7 @@ MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
     info->layout = loaded[0].sel.layout;
     info->time_step = hr.rule;
     info->records = loaded[0].axis.t.size();
+    info->time_bounds_label = loaded[0].axis.bounds_label;
   }
   return m;
 }

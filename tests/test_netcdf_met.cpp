@@ -102,6 +102,7 @@ TEST_CASE("a packed single series is unpacked, gap-marked and converted to SI") 
   CHECK(info.role_variable.at("mixing_height") == "zmix");
   CHECK(info.layout == "a single time series");
   CHECK(info.time_step == "hourly, used as is");
+  CHECK(info.time_bounds_label.empty());  // no bounds in this file
   CHECK(m.source == path);
 }
 
@@ -725,4 +726,28 @@ TEST_CASE("a display name stands for the path in messages and in the series' sou
   opt.display_name = "absent.nc";
   CHECK(error_of(path + ".missing", opt) ==
         "absent.nc: no such file; expected an existing NetCDF file");
+}
+
+TEST_CASE("time bounds tell which end of the hour the met stamps mark") {
+  const std::string path = scratch_dir("bounds") + "/b.nc";
+  {
+    Simple s(path, "hours since 2026-01-05", 2);
+    const int h = s.blh();
+    const int nv = s.w.dim("nv", 2);
+    s.w.text(s.t_var, "bounds", "time_bnds");
+    const int b = s.w.var("time_bnds", NC_DOUBLE, {s.t_dim, nv});
+    s.w.end_define();
+    s.w.put(s.t_var, {1, 2});
+    s.w.put(b, {0, 1, 1, 2});  // stamps at the end of each hour (CF 7.1 bounds)
+    s.w.put(h, {300, 400});
+    s.w.put(s.u_var, {1, 1});
+    s.w.put(s.v_var, {0, 0});
+  }
+  NetcdfReadInfo info;
+  const MetSeries m = read_met_netcdf(path, {}, &info);
+  CHECK(info.time_bounds_label == "period_end");
+  CHECK(m.first_stamp_utc == k20260105 + 3600);  // met keeps its stamps
+  (void)read_met_netcdf(std::string(LIDBOX_SOURCE_DIR) + "/met-demo/cindervale-met-point.nc", {},
+                        &info);
+  CHECK(info.time_bounds_label == "period_start");  // the demo's hour means, as its CSV
 }

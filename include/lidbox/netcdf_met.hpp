@@ -130,6 +130,10 @@ struct NetcdfReadInfo {
   std::string layout;       // "single time series", "station \"X\"", "grid cell (i, j) ..."
   std::string time_step;    // "3600 s, used as is", "600 s, hour means (75 % rule)", ...
   std::size_t records = 0;  // time records read
+  // From the time coordinate's bounds (CF 7.1), which end of its period each stamp marks:
+  // "period_start", "period_end", "other" (e.g. the middle), or "" without bounds. A caller can
+  // check it against the hour label it was told (MetSpec::hour_label).
+  std::string time_bounds_label;
 };
 
 // Reads hourly met. InputError for every problem of the file (see above); `info`, when given,

@@ -41,7 +41,11 @@ void dump_met(const MetDumpArgs& a) {
     validate_met(m);
   }
   std::cerr << "met-dump: " << a.input << ": " << info.layout << "; time step " << info.time_step
-            << "; " << info.records << " records -> " << m.size() << " hours\n";
+            << "; " << info.records << " records -> " << m.size() << " hours"
+            << (info.time_bounds_label.empty()
+                    ? ""
+                    : "; time bounds: stamps mark the " + info.time_bounds_label)
+            << "\n";
   if (!a.to_netcdf.empty()) {
     CfTable t = met_cf_table(m);
     t.title = "hourly met decoded by lidbox from " + a.input;
