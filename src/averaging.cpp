@@ -178,8 +178,18 @@ DailyValues daily_max_of_windows(const RunningMeans& means, int lst_offset_s,
   auto assigned_day = [&](std::size_t i) {
     return cc::floor_div(local_hour(i) - rule.first_start_hour, 24);
   };
-  const std::int64_t first = assigned_day(0);
-  const std::int64_t last = assigned_day(means.size() - 1);
+  auto in_a_day = [&](std::size_t i) {
+    const std::int64_t shifted = local_hour(i) - rule.first_start_hour;
+    return shifted - cc::floor_div(shifted, 24) * 24 < rule.window_count;
+  };
+  // The day span runs from the first to the last window that belongs to some day (a US day
+  // has no window starting 00:00-06:00, so a series starting at midnight opens on that day).
+  std::size_t i0 = 0;
+  while (i0 + 1 < means.size() && !in_a_day(i0)) ++i0;
+  std::size_t i1 = means.size() - 1;
+  while (i1 > i0 && !in_a_day(i1)) --i1;
+  const std::int64_t first = assigned_day(i0);
+  const std::int64_t last = std::max(first, assigned_day(i1));
   out.first_day = first;
   const auto days = static_cast<std::size_t>(last - first + 1);
   out.value.assign(days, kMissing);

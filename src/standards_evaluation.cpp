@@ -1,0 +1,303 @@
+#include "lidbox/standards_evaluation.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include "civil_calendar.hpp"
+#include "lidbox/error.hpp"
+
+namespace lidbox {
+
+namespace cc = civil_calendar;
+
+const char* to_string(Verdict v) {
+  switch (v) {
+    case Verdict::within:
+      return "within";
+    case Verdict::exceeded:
+      return "exceeded";
+    case Verdict::incomplete:
+      return "incomplete";
+  }
+  return "?";
+}
+
+namespace {
+
+HourlySeries scaled(const HourlySeries& s, double factor, const std::string& unit) {
+  HourlySeries out;
+  out.first_hour_start_utc = s.first_hour_start_utc;
+  out.unit = unit;
+  out.values.resize(s.values.size());
+  std::transform(s.values.begin(), s.values.end(), out.values.begin(),
+                 [factor](double v) { return v * factor; });
+  return out;
+}
+
+int days_in_year(int y) {
+  return static_cast<int>(cc::days_from_ymd(y + 1, 1, 1) - cc::days_from_ymd(y, 1, 1));
+}
+
+// The values one year contributes to a limit: plain values, or an index range of running means.
+struct YearBucket {
+  int year = 0;
+  std::vector<double> values;
+  std::size_t begin = 0;  // running means: window index range [begin, end)
+  std::size_t end = 0;
+  int possible = 0;
+  double annual = kMissing;  // annual statistics
+  bool annual_complete = false;
+  int annual_valid = 0;
+};
+
+YearBucket& bucket_for(std::vector<YearBucket>& b, int year) {
+  if (b.empty() || b.back().year != year)
+    b.push_back(YearBucket{year, {}, 0, 0, 0, kMissing, false, 0});
+  return b.back();
+}
+
+std::string describe(const Limit& l) {
+  const std::string s = to_string(l.statistic);
+  switch (l.form) {
+    case LimitForm::exceedances:
+      return "count of " + s + (l.non_overlapping ? " (non-overlapping)" : "") + " above level";
+    case LimitForm::nth_highest: {
+      static const char* kSuffix[] = {"th", "st", "nd", "rd"};
+      const int r = l.rank;
+      const char* suffix = (r % 100 >= 11 && r % 100 <= 13) || r % 10 > 3 ? "th" : kSuffix[r % 10];
+      return std::to_string(r) + suffix + " highest " + s +
+             (l.non_overlapping ? " (non-overlapping)" : "");
+    }
+    case LimitForm::percentile: {
+      char p[32];
+      std::snprintf(p, sizeof p, "%g", l.percentile);
+      return std::string(p) + "th percentile (" + to_string(l.ranking) + ") of " + s;
+    }
+    case LimitForm::annual_value:
+      return s;
+  }
+  return s;
+}
+
+std::vector<YearBucket> collect(const HourlySeries& conv, const Limit& l, int off,
+                                RunningMeans* rm_out) {
+  std::vector<YearBucket> years;
+  switch (l.statistic) {
+    case StatisticKind::hourly_value:
+      for (std::size_t i = 0; i < conv.size(); ++i) {
+        const int y = year_of_day(lst_day_of(conv.hour_start(i), off));
+        YearBucket& b = bucket_for(years, y);
+        b.possible = days_in_year(y) * 24;
+        if (!std::isnan(conv.values[i])) b.values.push_back(conv.values[i]);
+      }
+      break;
+    case StatisticKind::running_mean: {
+      *rm_out = running_means(conv, l.averaging_h, min_valid_count(l.averaging_h, 0.75));
+      for (std::size_t i = 0; i < rm_out->size(); ++i) {
+        const int y = year_of_day(lst_day_of(rm_out->window_start_utc(i), off));
+        const bool fresh = years.empty() || years.back().year != y;
+        YearBucket& b = bucket_for(years, y);
+        if (fresh) b.begin = i;
+        b.end = i + 1;
+        b.possible = days_in_year(y) * 24;
+        if (!std::isnan(rm_out->mean[i])) b.values.push_back(rm_out->mean[i]);
+      }
+      break;
+    }
+    case StatisticKind::daily_mean:
+    case StatisticKind::daily_max_1h:
+    case StatisticKind::daily_max_8h_17_windows:
+    case StatisticKind::daily_max_8h_24_windows: {
+      DailyValues dv;
+      if (l.statistic == StatisticKind::daily_mean) {
+        dv = daily_means(conv, off, min_valid_count(24, l.min_valid_fraction));
+      } else if (l.statistic == StatisticKind::daily_max_1h) {
+        dv = daily_max_1h(conv, off, min_valid_count(24, l.min_valid_fraction));
+      } else {
+        DailyWindowRule rule = l.statistic == StatisticKind::daily_max_8h_17_windows
+                                   ? kUsOzoneDayWindows
+                                   : kEuDayWindows;
+        rule.min_valid_windows = min_valid_count(rule.window_count, l.min_valid_fraction);
+        dv = daily_max_of_windows(running_means(conv, 8, 6), off, rule);
+      }
+      for (std::size_t d = 0; d < dv.size(); ++d) {
+        const int y = year_of_day(dv.day(d));
+        YearBucket& b = bucket_for(years, y);
+        b.possible = days_in_year(y);
+        const double v = dv.value[d];
+        if (std::isnan(v)) continue;
+        const bool above = apply_rounding(v, l.rounding) > l.level;
+        if (dv.complete(d) || (l.incomplete_day_counts_if_above && above)) b.values.push_back(v);
+      }
+      break;
+    }
+    case StatisticKind::annual_mean:
+      for (const PeriodMean& pm :
+           period_means_of_hours(conv, off, Period::year, l.min_valid_fraction)) {
+        YearBucket& b = bucket_for(years, pm.year);
+        b.annual = pm.mean;
+        b.annual_complete = pm.complete;
+        b.annual_valid = pm.valid_count;
+        b.possible = pm.possible_count;
+      }
+      break;
+    case StatisticKind::annual_mean_of_quarterly_means: {
+      const DailyValues dv = daily_means(conv, off, min_valid_count(24, 0.75));
+      const auto quarters = period_means_of_days(dv, Period::quarter, l.min_valid_fraction);
+      for (const AnnualOfQuarters& a : annual_means_of_quarters(quarters)) {
+        YearBucket& b = bucket_for(years, a.year);
+        b.annual = a.mean;
+        b.annual_complete = a.complete;
+        b.annual_valid = a.complete_quarters;
+        b.possible = 4;
+      }
+      break;
+    }
+    case StatisticKind::peak_season_mean: {
+      const DailyValues dv = daily_max_of_windows(running_means(conv, 8, 6), off, kEuDayWindows);
+      const auto months = period_means_of_days(dv, Period::month, l.min_valid_fraction);
+      for (std::size_t m = 0; m < months.size(); ++m) {
+        YearBucket& b = bucket_for(years, months[m].year);
+        b.possible = 12;
+        if (m + 6 > months.size()) continue;
+        bool ok = true;
+        double sum = 0.0;
+        for (std::size_t j = m; j < m + 6; ++j) {
+          ok = ok && months[j].complete;
+          sum += months[j].mean;
+        }
+        if (!ok) continue;
+        ++b.annual_valid;
+        b.annual = std::isnan(b.annual) ? sum / 6.0 : std::max(b.annual, sum / 6.0);
+        b.annual_complete = true;
+      }
+      break;
+    }
+  }
+  return years;
+}
+
+}  // namespace
+
+std::vector<LimitYearResult> evaluate_limits(const NamedSeries& series, const RuleSet& rules,
+                                             int lst_offset_s) {
+  std::vector<LimitYearResult> out;
+  for (const Limit& l : rules.limits) {
+    const auto it = series.find(l.pollutant);
+    if (it == series.end() || it->second.size() == 0) continue;
+    const double factor = unit_factor(it->second.unit, l.unit, l.pollutant, rules.reference,
+                                      l.where + ": limit \"" + l.id + "\" for series " +
+                                          l.pollutant + " [" + it->second.unit + "]");
+    const HourlySeries conv = scaled(it->second, factor, l.unit);
+    RunningMeans rm;
+    const std::vector<YearBucket> years = collect(conv, l, lst_offset_s, &rm);
+    const std::size_t first_result = out.size();
+    for (const YearBucket& b : years) {
+      LimitYearResult r;
+      r.rule_set_id = rules.id;
+      r.limit_id = l.id;
+      r.pollutant = l.pollutant;
+      r.kind = l.kind;
+      r.year = b.year;
+      r.statistic = describe(l);
+      r.unit = l.unit;
+      r.level = l.level;
+      r.years_averaged = l.years_averaged;
+      r.legal_source = l.legal_source;
+      r.checked = l.checked;
+      r.possible_count = b.possible;
+      const bool annual = l.form == LimitForm::annual_value;
+      r.valid_count = annual ? b.annual_valid : static_cast<int>(b.values.size());
+      r.complete = annual ? b.annual_complete
+                          : r.valid_count >= min_valid_count(b.possible, l.min_valid_fraction);
+      const bool rolling = l.statistic == StatisticKind::running_mean;
+      if (rolling && l.non_overlapping) {
+        r.exceedances = count_non_overlapping_exceedances(rm, b.begin, b.end, l.level, l.rounding);
+      } else {
+        r.exceedances =
+            static_cast<int>(std::count_if(b.values.begin(), b.values.end(), [&](double v) {
+              return apply_rounding(v, l.rounding) > l.level;
+            }));
+      }
+      bool monotone = false;  // more data could only raise the statistic
+      switch (l.form) {
+        case LimitForm::exceedances:
+          r.allowed_exceedances = l.allowed_exceedances;
+          r.value = static_cast<double>(r.exceedances);
+          monotone = true;
+          break;
+        case LimitForm::nth_highest:
+          r.value = apply_rounding(rolling && l.non_overlapping
+                                       ? nth_highest_non_overlapping(rm, b.begin, b.end, l.rank)
+                                       : nth_highest(b.values, l.rank),
+                                   l.rounding);
+          monotone = true;
+          break;
+        case LimitForm::percentile:
+          if (!b.values.empty()) {
+            const int rank =
+                percentile_rank(l.ranking, static_cast<int>(b.values.size()), l.percentile);
+            r.value = apply_rounding(nth_highest(b.values, rank), l.rounding);
+          }
+          break;
+        case LimitForm::annual_value:
+          r.value = apply_rounding(b.annual, l.rounding);
+          break;
+      }
+      const bool above = l.form == LimitForm::exceedances
+                             ? r.exceedances > l.allowed_exceedances
+                             : (!std::isnan(r.value) && r.value > l.level);
+      if (above && (r.complete || monotone)) {
+        r.verdict = Verdict::exceeded;
+      } else {
+        r.verdict = r.complete ? Verdict::within : Verdict::incomplete;
+      }
+      out.push_back(std::move(r));
+    }
+    // Multi-year forms: the mean of the annual statistic over consecutive complete years.
+    if (l.years_averaged > 1) {
+      for (std::size_t i = first_result; i < out.size(); ++i) {
+        const auto n = static_cast<std::size_t>(l.years_averaged);
+        if (i + 1 < first_result + n) continue;
+        double sum = 0.0;
+        bool ok = true;
+        for (std::size_t j = i + 1 - n; j <= i; ++j) {
+          ok = ok && out[j].complete && !std::isnan(out[j].value) &&
+               out[j].year == out[i].year - static_cast<int>(i - j);
+          sum += out[j].value;
+        }
+        if (!ok) continue;
+        const double mean = sum / static_cast<double>(n);
+        out[i].multi_year_value =
+            l.form == LimitForm::exceedances ? mean : apply_rounding(mean, l.rounding);
+        const double allowed =
+            l.form == LimitForm::exceedances ? static_cast<double>(l.allowed_exceedances) : l.level;
+        out[i].verdict = out[i].multi_year_value > allowed ? Verdict::exceeded : Verdict::within;
+      }
+    }
+  }
+  return out;
+}
+
+std::vector<DailyStatisticsRow> daily_statistics(const NamedSeries& series, int lst_offset_s) {
+  std::vector<DailyStatisticsRow> out;
+  for (const auto& [name, s] : series) {
+    if (s.size() == 0) continue;
+    const RunningMeans rm8 = running_means(s, 8, 6);
+    const std::pair<const char*, DailyValues> tables[] = {
+        {"daily_mean", daily_means(s, lst_offset_s, 18)},
+        {"daily_max_1h", daily_max_1h(s, lst_offset_s, 18)},
+        {"daily_max_8h_17_windows", daily_max_of_windows(rm8, lst_offset_s, kUsOzoneDayWindows)},
+        {"daily_max_8h_24_windows", daily_max_of_windows(rm8, lst_offset_s, kEuDayWindows)},
+    };
+    for (const auto& [stat, dv] : tables) {
+      for (std::size_t d = 0; d < dv.size(); ++d) {
+        out.push_back(DailyStatisticsRow{name, dv.day(d), stat, dv.value[d], s.unit,
+                                         dv.valid_count[d], dv.possible_count, dv.complete(d)});
+      }
+    }
+  }
+  return out;
+}
+
+}  // namespace lidbox
