@@ -490,6 +490,12 @@ RuleSet load_rule_set(std::string_view name_or_path, const std::filesystem::path
   const auto file = dir / (s + ".toml");
   if (std::filesystem::exists(file)) return load_rule_set_file(file);
   const auto ids = list_rule_sets(dir);
+  // A unique beginning is enough ("eu-2008" for "eu-2008-50").
+  std::vector<std::string> starting;
+  for (const auto& id : ids) {
+    if (id.rfind(s, 0) == 0) starting.push_back(id);
+  }
+  if (starting.size() == 1 && !s.empty()) return load_rule_set_file(dir / (starting[0] + ".toml"));
   throw InputError("rule set \"" + s + "\"", "not found in " + dir.string(),
                    (ids.empty() ? std::string("a rule-set file path") : "one of " + join(ids)) +
                        did_you_mean(s, ids));

@@ -223,7 +223,7 @@ std::vector<LimitYearResult> evaluate_limits(const NamedSeries& series, const Ru
       switch (l.form) {
         case LimitForm::exceedances:
           r.allowed_exceedances = l.allowed_exceedances;
-          r.value = static_cast<double>(r.exceedances);
+          // The count is the statistic; `value` stays empty so no unit is attached to it.
           monotone = true;
           break;
         case LimitForm::nth_highest:
@@ -244,6 +244,7 @@ std::vector<LimitYearResult> evaluate_limits(const NamedSeries& series, const Ru
           r.value = apply_rounding(b.annual, l.rounding);
           break;
       }
+      if (annual) r.exceedances = -1;  // an annual value has nothing to count
       const bool above = l.form == LimitForm::exceedances
                              ? r.exceedances > l.allowed_exceedances
                              : (!std::isnan(r.value) && r.value > l.level);
@@ -252,6 +253,9 @@ std::vector<LimitYearResult> evaluate_limits(const NamedSeries& series, const Ru
       } else {
         r.verdict = r.complete ? Verdict::within : Verdict::incomplete;
       }
+      // A calendar year the series only grazes (e.g. the hours before the first LST midnight)
+      // with nothing counted says nothing; leave it out.
+      if (r.valid_count == 0) continue;
       out.push_back(std::move(r));
     }
     // Multi-year forms: the mean of the annual statistic over consecutive complete years.
@@ -262,9 +266,12 @@ std::vector<LimitYearResult> evaluate_limits(const NamedSeries& series, const Ru
         double sum = 0.0;
         bool ok = true;
         for (std::size_t j = i + 1 - n; j <= i; ++j) {
-          ok = ok && out[j].complete && !std::isnan(out[j].value) &&
+          const double v = l.form == LimitForm::exceedances
+                               ? static_cast<double>(out[j].exceedances)
+                               : out[j].value;
+          ok = ok && out[j].complete && !std::isnan(v) &&
                out[j].year == out[i].year - static_cast<int>(i - j);
-          sum += out[j].value;
+          sum += v;
         }
         if (!ok) continue;
         const double mean = sum / static_cast<double>(n);

@@ -145,7 +145,8 @@ std::filesystem::path rules_directory(const std::optional<std::filesystem::path>
 // Ids of the rule sets in a folder (file stems of *.toml), sorted.
 std::vector<std::string> list_rule_sets(const std::filesystem::path& dir);
 // A shipped rule set by id ("us-naaqs"), or a file when `name_or_path` ends in ".toml" or holds
-// a '/'. An unknown id is an InputError listing the ids with a "did you mean" hint.
+// a '/'. A unique beginning of an id is enough ("eu-2008"). An unknown id is an InputError
+// listing the ids with a "did you mean" hint.
 RuleSet load_rule_set(std::string_view name_or_path, const std::filesystem::path& dir);
 
 // Conversion factor from a series unit to a rule's unit for one pollutant under the rule set's

@@ -41,23 +41,26 @@ struct LimitYearResult {
   std::string kind;
   int year = 0;
   std::string statistic;    // e.g. "4th highest daily_max_8h_17_windows"
-  double value = kMissing;  // the year's statistic in `unit`, after rounding
+  double value = kMissing;  // the year's statistic in `unit`, after rounding; NaN for counts
+                            // (form exceedances: see `exceedances`)
   std::string unit;
   double level = 0.0;
-  int exceedances = 0;           // values above the level this year (non-overlapping if asked)
+  int exceedances = 0;  // above the level this year (non-overlapping if asked); -1 if annual
   int allowed_exceedances = -1;  // -1 when the form is not a count
   int valid_count = 0;           // values counted this year
   int possible_count = 0;        // values a full year has
   bool complete = false;
   int years_averaged = 1;
-  double multi_year_value = kMissing;  // mean over years_averaged consecutive complete years
+  double multi_year_value = kMissing;  // mean of value (or of the count) over years_averaged
+                                       // consecutive complete years
                                        // ending with this one, rounded; NaN if not available
   Verdict verdict = Verdict::incomplete;
   std::string legal_source;
   std::string checked;
 };
 
-// Results for every limit of `rules` whose pollutant is in `series` (others are skipped).
+// Results for every limit of `rules` whose pollutant is in `series` (others are skipped), for
+// each LST calendar year with at least one value counted.
 // A series unit that cannot be converted to the limit unit is an InputError naming both.
 std::vector<LimitYearResult> evaluate_limits(const NamedSeries& series, const RuleSet& rules,
                                              int lst_offset_s);
