@@ -1,8 +1,8 @@
 #include "lidbox/aqhi.hpp"
 
+#include <algorithm>
 #include <array>
 #include <cmath>
-#include <map>
 
 #include "lidbox/averaging.hpp"
 
@@ -29,31 +29,44 @@ const char* aqhi_category(int rounded) {
 std::vector<AqhiHour> hourly_aqhi(const NamedSeries& series) {
   const char* names[] = {"NO2", "O3", "PM2.5"};
   const char* units[] = {"ppb", "ppb", "ug m-3"};
-  std::map<UtcSeconds, std::array<double, 3>> by_end;
-  std::array<double, 3> none{kMissing, kMissing, kMissing};
+  const HourlySeries* s[3] = {};
   for (std::size_t p = 0; p < 3; ++p) {
     const auto it = series.find(names[p]);
     if (it == series.end() || it->second.size() == 0) return {};
-    const double f =
-        unit_factor(it->second.unit, units[p], names[p], kUsReferenceConditions,
-                    std::string("AQHI input ") + names[p] + " [" + it->second.unit + "]");
-    // Trailing 3-h means: the window starting two hours before hour t ends with hour t.
-    const RunningMeans rm = running_means(it->second, 3, 2);
-    for (std::size_t i = 0; i < rm.size(); ++i) {
-      if (std::isnan(rm.mean[i]) || i + 3 > rm.size()) continue;
-      auto [slot, fresh] = by_end.try_emplace(rm.window_end_utc(i), none);
-      slot->second[p] = rm.mean[i] * f;
+    s[p] = &it->second;
+  }
+  // A common hour axis over the three series: window ends from the earliest to the latest.
+  UtcSeconds first = s[0]->first_hour_start_utc;
+  UtcSeconds last = s[0]->hour_start(s[0]->size() - 1);
+  for (const HourlySeries* x : s) {
+    first = std::min(first, x->first_hour_start_utc);
+    last = std::max(last, x->hour_start(x->size() - 1));
+  }
+  const auto slots = static_cast<std::size_t>((last - first) / kSecondsPerHour + 1);
+  std::vector<std::array<double, 3>> c(slots, {kMissing, kMissing, kMissing});
+  for (std::size_t p = 0; p < 3; ++p) {
+    const double f = unit_factor(s[p]->unit, units[p], names[p], kUsReferenceConditions,
+                                 std::string("AQHI input ") + names[p] + " [" + s[p]->unit + "]");
+    // Trailing 3-h means: slot k holds the window whose last hour starts at first + k h.
+    const RunningMeans rm = running_means(*s[p], 3, 2);
+    for (std::size_t i = 0; i + 3 <= rm.size(); ++i) {
+      if (std::isnan(rm.mean[i])) continue;
+      const auto slot = static_cast<std::size_t>(
+          (rm.window_start_utc(i) + 2 * kSecondsPerHour - first) / kSecondsPerHour);
+      if (slot < slots) c[slot][p] = rm.mean[i] * f;
     }
   }
   std::vector<AqhiHour> out;
-  for (const auto& [end, c] : by_end) {
-    if (std::isnan(c[0]) || std::isnan(c[1]) || std::isnan(c[2])) continue;
+  out.reserve(slots);
+  for (std::size_t k = 0; k < slots; ++k) {
+    const auto& v = c[k];
+    if (std::isnan(v[0]) || std::isnan(v[1]) || std::isnan(v[2])) continue;
     AqhiHour h;
-    h.end_utc = end;
-    h.no2_ppb = c[0];
-    h.o3_ppb = c[1];
-    h.pm25_ug_m3 = c[2];
-    h.value = aqhi_value(c[0], c[1], c[2]);
+    h.end_utc = first + static_cast<UtcSeconds>(k + 1) * kSecondsPerHour;
+    h.no2_ppb = v[0];
+    h.o3_ppb = v[1];
+    h.pm25_ug_m3 = v[2];
+    h.value = aqhi_value(v[0], v[1], v[2]);
     h.rounded = aqhi_rounded(h.value);
     h.category = aqhi_category(h.rounded);
     out.push_back(h);

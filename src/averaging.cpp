@@ -23,7 +23,12 @@ int min_valid_count(int total, double fraction) {
 
 double apply_rounding(double value, Rounding rounding) {
   if (std::isnan(value) || rounding.mode == RoundingMode::none) return value;
-  const double scale = std::pow(10.0, rounding.decimals);
+  // A table instead of std::pow: this runs once per compared value.
+  static constexpr double kPow10[] = {1e-6, 1e-5, 1e-4, 1e-3, 1e-2, 1e-1, 1e0, 1e1,
+                                      1e2,  1e3,  1e4,  1e5,  1e6,  1e7,  1e8, 1e9};
+  const double scale = rounding.decimals >= -6 && rounding.decimals <= 9
+                           ? kPow10[rounding.decimals + 6]
+                           : std::pow(10.0, rounding.decimals);
   const double x = value * scale;
   const double nudge = 1e-9 * std::max(1.0, std::fabs(x));
   double r = 0.0;

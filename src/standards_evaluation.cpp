@@ -2,6 +2,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <map>
+#include <tuple>
 
 #include "civil_calendar.hpp"
 #include "lidbox/error.hpp"
@@ -24,16 +26,6 @@ const char* to_string(Verdict v) {
 
 namespace {
 
-HourlySeries scaled(const HourlySeries& s, double factor, const std::string& unit) {
-  HourlySeries out;
-  out.first_hour_start_utc = s.first_hour_start_utc;
-  out.unit = unit;
-  out.values.resize(s.values.size());
-  std::transform(s.values.begin(), s.values.end(), out.values.begin(),
-                 [factor](double v) { return v * factor; });
-  return out;
-}
-
 int days_in_year(int y) {
   return static_cast<int>(cc::days_from_ymd(y + 1, 1, 1) - cc::days_from_ymd(y, 1, 1));
 }
@@ -55,6 +47,42 @@ YearBucket& bucket_for(std::vector<YearBucket>& b, int year) {
     b.push_back(YearBucket{year, {}, 0, 0, 0, kMissing, false, 0});
   return b.back();
 }
+
+// Intermediate tables in the SERIES unit, shared by every limit of a call that needs them
+// (the WHO file alone asks for the same daily means at five levels). Means and maxima commute
+// with a positive unit factor, so each limit scales the values it takes.
+struct Cache {
+  std::map<std::tuple<std::string, int, int>, DailyValues> daily;  // pollutant, statistic, required
+  std::map<std::string, RunningMeans> running8;                    // pollutant -> 8-h, 6 valid
+
+  const RunningMeans& eight_hour(const std::string& p, const HourlySeries& s) {
+    auto it = running8.find(p);
+    if (it == running8.end()) it = running8.emplace(p, running_means(s, 8, 6)).first;
+    return it->second;
+  }
+  const DailyValues& day(const std::string& p, const HourlySeries& s, StatisticKind k, int required,
+                         int off) {
+    const auto key = std::make_tuple(p, static_cast<int>(k), required);
+    auto it = daily.find(key);
+    if (it != daily.end()) return it->second;
+    DailyValues dv;
+    switch (k) {
+      case StatisticKind::daily_mean:
+        dv = daily_means(s, off, required);
+        break;
+      case StatisticKind::daily_max_1h:
+        dv = daily_max_1h(s, off, required);
+        break;
+      case StatisticKind::daily_max_8h_17_windows:
+        dv = daily_max_of_windows(eight_hour(p, s), off, {7, 17, required});
+        break;
+      default:
+        dv = daily_max_of_windows(eight_hour(p, s), off, {-7, 24, required});
+        break;
+    }
+    return daily.emplace(key, std::move(dv)).first->second;
+  }
+};
 
 std::string describe(const Limit& l) {
   const std::string s = to_string(l.statistic);
@@ -79,27 +107,35 @@ std::string describe(const Limit& l) {
   return s;
 }
 
-std::vector<YearBucket> collect(const HourlySeries& conv, const Limit& l, int off,
-                                RunningMeans* rm_out) {
+std::vector<YearBucket> collect(const HourlySeries& s, double f, const Limit& l, int off,
+                                RunningMeans* rm_out, Cache& cache) {
   std::vector<YearBucket> years;
   switch (l.statistic) {
     case StatisticKind::hourly_value:
-      for (std::size_t i = 0; i < conv.size(); ++i) {
-        const int y = year_of_day(lst_day_of(conv.hour_start(i), off));
+      for (std::size_t i = 0; i < s.size(); ++i) {
+        const int y = year_of_day(lst_day_of(s.hour_start(i), off));
+        const bool fresh = years.empty() || years.back().year != y;
         YearBucket& b = bucket_for(years, y);
-        b.possible = days_in_year(y) * 24;
-        if (!std::isnan(conv.values[i])) b.values.push_back(conv.values[i]);
+        if (fresh) {
+          b.possible = days_in_year(y) * 24;
+          b.values.reserve(static_cast<std::size_t>(b.possible));
+        }
+        if (!std::isnan(s.values[i])) b.values.push_back(s.values[i] * f);
       }
       break;
     case StatisticKind::running_mean: {
-      *rm_out = running_means(conv, l.averaging_h, min_valid_count(l.averaging_h, 0.75));
+      *rm_out = running_means(s, l.averaging_h, min_valid_count(l.averaging_h, 0.75));
+      for (double& m : rm_out->mean) m *= f;
       for (std::size_t i = 0; i < rm_out->size(); ++i) {
         const int y = year_of_day(lst_day_of(rm_out->window_start_utc(i), off));
         const bool fresh = years.empty() || years.back().year != y;
         YearBucket& b = bucket_for(years, y);
-        if (fresh) b.begin = i;
+        if (fresh) {
+          b.begin = i;
+          b.possible = days_in_year(y) * 24;
+          b.values.reserve(static_cast<std::size_t>(b.possible));
+        }
         b.end = i + 1;
-        b.possible = days_in_year(y) * 24;
         if (!std::isnan(rm_out->mean[i])) b.values.push_back(rm_out->mean[i]);
       }
       break;
@@ -108,23 +144,14 @@ std::vector<YearBucket> collect(const HourlySeries& conv, const Limit& l, int of
     case StatisticKind::daily_max_1h:
     case StatisticKind::daily_max_8h_17_windows:
     case StatisticKind::daily_max_8h_24_windows: {
-      DailyValues dv;
-      if (l.statistic == StatisticKind::daily_mean) {
-        dv = daily_means(conv, off, min_valid_count(24, l.min_valid_fraction));
-      } else if (l.statistic == StatisticKind::daily_max_1h) {
-        dv = daily_max_1h(conv, off, min_valid_count(24, l.min_valid_fraction));
-      } else {
-        DailyWindowRule rule = l.statistic == StatisticKind::daily_max_8h_17_windows
-                                   ? kUsOzoneDayWindows
-                                   : kEuDayWindows;
-        rule.min_valid_windows = min_valid_count(rule.window_count, l.min_valid_fraction);
-        dv = daily_max_of_windows(running_means(conv, 8, 6), off, rule);
-      }
+      const int total = l.statistic == StatisticKind::daily_max_8h_17_windows ? 17 : 24;
+      const DailyValues& dv =
+          cache.day(l.pollutant, s, l.statistic, min_valid_count(total, l.min_valid_fraction), off);
       for (std::size_t d = 0; d < dv.size(); ++d) {
         const int y = year_of_day(dv.day(d));
         YearBucket& b = bucket_for(years, y);
         b.possible = days_in_year(y);
-        const double v = dv.value[d];
+        const double v = dv.value[d] * f;
         if (std::isnan(v)) continue;
         const bool above = apply_rounding(v, l.rounding) > l.level;
         if (dv.complete(d) || (l.incomplete_day_counts_if_above && above)) b.values.push_back(v);
@@ -133,20 +160,20 @@ std::vector<YearBucket> collect(const HourlySeries& conv, const Limit& l, int of
     }
     case StatisticKind::annual_mean:
       for (const PeriodMean& pm :
-           period_means_of_hours(conv, off, Period::year, l.min_valid_fraction)) {
+           period_means_of_hours(s, off, Period::year, l.min_valid_fraction)) {
         YearBucket& b = bucket_for(years, pm.year);
-        b.annual = pm.mean;
+        b.annual = pm.mean * f;
         b.annual_complete = pm.complete;
         b.annual_valid = pm.valid_count;
         b.possible = pm.possible_count;
       }
       break;
     case StatisticKind::annual_mean_of_quarterly_means: {
-      const DailyValues dv = daily_means(conv, off, min_valid_count(24, 0.75));
+      const DailyValues& dv = cache.day(l.pollutant, s, StatisticKind::daily_mean, 18, off);
       const auto quarters = period_means_of_days(dv, Period::quarter, l.min_valid_fraction);
       for (const AnnualOfQuarters& a : annual_means_of_quarters(quarters)) {
         YearBucket& b = bucket_for(years, a.year);
-        b.annual = a.mean;
+        b.annual = a.mean * f;
         b.annual_complete = a.complete;
         b.annual_valid = a.complete_quarters;
         b.possible = 4;
@@ -154,7 +181,8 @@ std::vector<YearBucket> collect(const HourlySeries& conv, const Limit& l, int of
       break;
     }
     case StatisticKind::peak_season_mean: {
-      const DailyValues dv = daily_max_of_windows(running_means(conv, 8, 6), off, kEuDayWindows);
+      const DailyValues& dv =
+          cache.day(l.pollutant, s, StatisticKind::daily_max_8h_24_windows, 18, off);
       const auto months = period_means_of_days(dv, Period::month, l.min_valid_fraction);
       for (std::size_t m = 0; m < months.size(); ++m) {
         YearBucket& b = bucket_for(years, months[m].year);
@@ -168,7 +196,8 @@ std::vector<YearBucket> collect(const HourlySeries& conv, const Limit& l, int of
         }
         if (!ok) continue;
         ++b.annual_valid;
-        b.annual = std::isnan(b.annual) ? sum / 6.0 : std::max(b.annual, sum / 6.0);
+        const double mean = sum / 6.0 * f;
+        b.annual = std::isnan(b.annual) ? mean : std::max(b.annual, mean);
         b.annual_complete = true;
       }
       break;
@@ -182,15 +211,15 @@ std::vector<YearBucket> collect(const HourlySeries& conv, const Limit& l, int of
 std::vector<LimitYearResult> evaluate_limits(const NamedSeries& series, const RuleSet& rules,
                                              int lst_offset_s) {
   std::vector<LimitYearResult> out;
+  Cache cache;
   for (const Limit& l : rules.limits) {
     const auto it = series.find(l.pollutant);
     if (it == series.end() || it->second.size() == 0) continue;
     const double factor = unit_factor(it->second.unit, l.unit, l.pollutant, rules.reference,
                                       l.where + ": limit \"" + l.id + "\" for series " +
                                           l.pollutant + " [" + it->second.unit + "]");
-    const HourlySeries conv = scaled(it->second, factor, l.unit);
     RunningMeans rm;
-    const std::vector<YearBucket> years = collect(conv, l, lst_offset_s, &rm);
+    const std::vector<YearBucket> years = collect(it->second, factor, l, lst_offset_s, &rm, cache);
     const std::size_t first_result = out.size();
     for (const YearBucket& b : years) {
       LimitYearResult r;
@@ -288,6 +317,9 @@ std::vector<LimitYearResult> evaluate_limits(const NamedSeries& series, const Ru
 
 std::vector<DailyStatisticsRow> daily_statistics(const NamedSeries& series, int lst_offset_s) {
   std::vector<DailyStatisticsRow> out;
+  std::size_t rows = 0;
+  for (const auto& [name, s] : series) rows += 4 * (s.size() / 24 + 2);
+  out.reserve(rows);
   for (const auto& [name, s] : series) {
     if (s.size() == 0) continue;
     const RunningMeans rm8 = running_means(s, 8, 6);

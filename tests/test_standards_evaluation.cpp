@@ -197,7 +197,7 @@ TEST_CASE("daily statistics carry all four daily values with their counts") {
   NamedSeries s{{"O3", HourlySeries{utc(2025, 6, 1), std::vector<double>(48, 40.0), "ppb"}}};
   const auto rows = daily_statistics(s, 0);
   const auto n = std::count_if(rows.begin(), rows.end(), [](const DailyStatisticsRow& r) {
-    return r.statistic == "daily_max_8h_24_windows" && r.complete;
+    return std::string(r.statistic) == "daily_max_8h_24_windows" && r.complete;
   });
   // Day 1 has its 24 windows ending in it, but its first 7 start before the series: 17 valid,
   // incomplete (< 18). Day 2 has all 24 (closed form).

@@ -69,8 +69,8 @@ std::vector<LimitYearResult> evaluate_limits(const NamedSeries& series, const Ru
 struct DailyStatisticsRow {
   std::string pollutant;
   std::int64_t day = 0;
-  std::string
-      statistic;  // daily_mean, daily_max_1h, daily_max_8h_17_windows, daily_max_8h_24_windows
+  // daily_mean, daily_max_1h, daily_max_8h_17_windows or daily_max_8h_24_windows (static text)
+  const char* statistic = "";
   double value = kMissing;
   std::string unit;
   int valid_count = 0;
