@@ -48,6 +48,13 @@ StandardsReport compute_standards_report(const NamedSeries& series, ReportOption
     r.episodes.insert(r.episodes.end(), episodes.begin(), episodes.end());
   }
   r.daily = daily_statistics(series, off);
+  for (const auto& [name, s] : series) {
+    for (Period p : {Period::month, Period::quarter, Period::year}) {
+      for (const PeriodMean& m : period_means_of_hours(s, off, p, 0.75)) {
+        if (m.valid_count > 0) r.periods.push_back(PeriodRow{name, s.unit, p, m});
+      }
+    }
+  }
   if (options.with_aqi) r.aqi = daily_aqi(series, off, options.aqi_table);
   if (options.with_aqhi) r.aqhi = hourly_aqhi(series);
   for (const RollingRequest& q : options.rolling) {
@@ -104,6 +111,22 @@ std::string daily_csv(const StandardsReport& r) {
     o << csv(x.pollutant) << ',' << format_day(x.day) << ',' << x.statistic << ',' << num(x.value)
       << ',' << csv(x.unit) << ',' << x.valid_count << ',' << x.possible_count << ','
       << (x.complete ? "true" : "false") << '\n';
+  }
+  return o.str();
+}
+
+std::string periods_csv(const StandardsReport& r) {
+  std::ostringstream o;
+  o << "pollutant,period,year,index,first_day_lst,last_day_lst,mean,unit,valid_hours,"
+       "possible_hours,complete\n";
+  for (const auto& x : r.periods) {
+    const char* kind = x.period == Period::month     ? "month"
+                       : x.period == Period::quarter ? "quarter"
+                                                     : "year";
+    o << csv(x.pollutant) << ',' << kind << ',' << x.mean.year << ',' << x.mean.index << ','
+      << format_day(x.mean.first_day) << ',' << format_day(x.mean.last_day) << ','
+      << num(x.mean.mean) << ',' << csv(x.unit) << ',' << x.mean.valid_count << ','
+      << x.mean.possible_count << ',' << (x.mean.complete ? "true" : "false") << '\n';
   }
   return o.str();
 }
@@ -204,7 +227,7 @@ std::string jn(double v) {
 }
 
 std::vector<std::string> table_names(const StandardsReport& r) {
-  std::vector<std::string> names = {"limits.csv", "daily.csv", "episodes.csv"};
+  std::vector<std::string> names = {"limits.csv", "daily.csv", "periods.csv", "episodes.csv"};
   if (r.options.with_aqi) names.emplace_back("aqi.csv");
   if (r.options.with_aqhi) names.emplace_back("aqhi.csv");
   for (const auto& q : r.options.rolling) {
@@ -451,6 +474,7 @@ std::vector<ReportFile> render_standards_report(const StandardsReport& r) {
   std::vector<ReportFile> files;
   files.push_back({"limits.csv", limits_csv(r)});
   files.push_back({"daily.csv", daily_csv(r)});
+  files.push_back({"periods.csv", periods_csv(r)});
   files.push_back({"episodes.csv", episodes_csv(r)});
   if (r.options.with_aqi) files.push_back({"aqi.csv", aqi_csv(r)});
   if (r.options.with_aqhi) files.push_back({"aqhi.csv", aqhi_csv(r)});

@@ -181,7 +181,8 @@ TEST_CASE("rounding and truncation follow the digit each standard names") {
   CHECK(apply_rounding(0.0719, {RoundingMode::truncate, 3}) == doctest::Approx(0.071));
   CHECK(apply_rounding(0.071, {RoundingMode::truncate, 3}) == doctest::Approx(0.071));
   CHECK(apply_rounding(0.070999, {RoundingMode::truncate, 3}) == doctest::Approx(0.070));
-  // PM10 to the nearest 10 ug/m3 (App. K, from memory): 154 -> 150, 155 -> 160.
+  // PM10 to the nearest 10 ug/m3, "values ending in 5 or greater are to be rounded up"
+  // (40 CFR 50 App. K 1.0(b), ecfr.io copy): 154 -> 150, 155 -> 160.
   CHECK(apply_rounding(154.0, {RoundingMode::round_half_up, -1}) == 150.0);
   CHECK(apply_rounding(155.0, {RoundingMode::round_half_up, -1}) == 160.0);
   // 9.05 is stored as 9.0499...; the standard's decimal reading rounds it up to 9.1.

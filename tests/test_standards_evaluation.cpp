@@ -204,3 +204,17 @@ TEST_CASE("daily statistics carry all four daily values with their counts") {
   CHECK(n == 1);
   CHECK(rows.front().unit == "ppb");
 }
+
+TEST_CASE("US PM10: a daily mean of 155 counts as an exceedance of 150, 154 does not") {
+  // 40 CFR 50 App. K 1.0(b) (ecfr.io copy): exceedance = daily value above 150 ug/m3 after
+  // rounding to the nearest 10 ug/m3, values ending in 5 or greater rounded up.
+  const RuleSet us = only("us-naaqs", "PM10-24h");
+  std::vector<double> v(24 * 3, 40.0);
+  for (std::size_t i = 0; i < 24; ++i) v[i] = 154.0;   // day 1
+  for (std::size_t i = 24; i < 48; ++i) v[i] = 155.0;  // day 2
+  NamedSeries s{{"PM10", HourlySeries{utc(2025, 4, 1), v, "ug m-3"}}};
+  const auto r = result(evaluate_limits(s, us, 0), "PM10-24h", 2025);
+  CHECK(r.exceedances == 1);
+  CHECK(r.allowed_exceedances == 1);
+  CHECK(r.verdict == Verdict::incomplete);  // 1 allowed, and the year is far from complete
+}

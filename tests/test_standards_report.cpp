@@ -78,6 +78,9 @@ TEST_CASE("the SO2 alert episode appears with its lead time in every output") {
   // Long-format tables name their units.
   CHECK(find("daily.csv").rfind("pollutant,date_lst,statistic,value,unit,", 0) == 0);
   CHECK(find("aqhi.csv").find("NO2 3-h mean [ppb]") != std::string::npos);
+  // February 2025 in CET: the series covers 3 Feb 01:00 .. 5 Feb 01:00 LST, 48 of 672 hours.
+  CHECK(find("periods.csv").find("NO2,month,2025,2,2025-02-01,2025-02-28,20,ppb,48,672,false") !=
+        std::string::npos);
   CHECK(find("rolling_8h.csv")
             .find("SO2,2025-02-03T03:00:00Z,2025-02-03T11:00:00Z,162.5,ug m-3,8,8,6") !=
         std::string::npos);  // (7 * 100 + 600) / 8 = 162.5, closed form
@@ -87,7 +90,7 @@ TEST_CASE("report files are written atomically with the prefix") {
   const auto dir = std::filesystem::path(LIDBOX_BINARY_DIR) / "test_standards_report_out";
   std::filesystem::remove_all(dir);
   const auto paths = write_standards_report(invented_report(), dir, "run_");
-  CHECK(paths.size() == 8);
+  CHECK(paths.size() == 9);
   for (const auto& p : paths) CHECK(std::filesystem::exists(p));
   CHECK(std::filesystem::exists(dir / "run_report.md"));
   // No temporary left behind.

@@ -5,7 +5,8 @@
 // version is named wherever AQI values appear. The same functions serve modelled series
 // (`lidbox run`) and observed ones (`lidbox observe`), so their tables compare line by line.
 //
-// Files (prefix + name): limits.csv, daily.csv, aqi.csv, aqhi.csv, episodes.csv,
+// Files (prefix + name): limits.csv, daily.csv, periods.csv (monthly, quarterly and annual
+// means of the hours, complete at 75 %), aqi.csv, aqhi.csv, episodes.csv,
 // rolling_<k>h.csv (one per requested window), report.md, report.json. Times in CSV are UTC
 // ("2024-07-01T13:00:00Z"); dates of daily values are LST dates, with the offset stated in the
 // reports.
@@ -48,6 +49,13 @@ struct SeriesSummary {
   std::size_t valid_hours = 0;
 };
 
+struct PeriodRow {
+  std::string pollutant;
+  std::string unit;
+  Period period = Period::month;
+  PeriodMean mean;
+};
+
 struct RollingTable {
   std::string pollutant;
   std::string unit;
@@ -59,6 +67,7 @@ struct StandardsReport {
   std::vector<SeriesSummary> series;
   std::vector<LimitYearResult> limits;
   std::vector<DailyStatisticsRow> daily;
+  std::vector<PeriodRow> periods;
   std::vector<DailyAqi> aqi;
   std::vector<AqhiHour> aqhi;
   std::vector<Episode> episodes;

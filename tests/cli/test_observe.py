@@ -44,7 +44,7 @@ with tempfile.TemporaryDirectory() as tmp:
                       "--issue-time", "2025-03-01T00:00Z", "--out", out])
     check(rc == 0, "good file exits 0 (got %d, stderr %s)" % (rc, se))
     names = sorted(os.listdir(out)) if os.path.isdir(out) else []
-    check(names == sorted("good_" + n for n in ["limits.csv", "daily.csv", "episodes.csv",
+    check(names == sorted("good_" + n for n in ["limits.csv", "daily.csv", "periods.csv", "episodes.csv",
                                                  "aqi.csv", "aqhi.csv", "report.md",
                                                  "report.json"]), "files written: %s" % names)
     if "good_report.json" in names:
