@@ -501,4 +501,20 @@ RuleSet load_rule_set(std::string_view name_or_path, const std::filesystem::path
                        did_you_mean(s, ids));
 }
 
+std::vector<RuleSet> load_rule_sets(const std::vector<std::string>& names_or_paths,
+                                    const std::filesystem::path& dir) {
+  std::vector<RuleSet> out;
+  for (const auto& n : names_or_paths) {
+    RuleSet rs = load_rule_set(n, dir);
+    for (const RuleSet& other : out) {
+      if (other.id == rs.id) {
+        throw InputError("rule set \"" + n + "\"", "id \"" + rs.id + "\" already loaded",
+                         "each rule set once");
+      }
+    }
+    out.push_back(std::move(rs));
+  }
+  return out;
+}
+
 }  // namespace lidbox

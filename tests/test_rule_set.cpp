@@ -173,3 +173,13 @@ TEST_CASE("a rule set is found by id or by path, and an unknown id suggests the 
 TEST_CASE("the rules directory can be given explicitly") {
   CHECK(rules_directory(std::filesystem::path("/x/y")) == std::filesystem::path("/x/y"));
 }
+
+TEST_CASE("several rule sets load in order and a repeated one is refused") {
+  const auto sets = load_rule_sets({"us-naaqs", "eu-2008"}, kRulesDir);
+  REQUIRE(sets.size() == 2);
+  CHECK(sets[1].id == "eu-2008-50");
+  CHECK_THROWS_WITH_AS(load_rule_sets({"eu-2008-50", "eu-2008"}, kRulesDir),
+                       "rule set \"eu-2008\": id \"eu-2008-50\" already loaded; expected each "
+                       "rule set once",
+                       InputError);
+}

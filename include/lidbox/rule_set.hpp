@@ -148,6 +148,10 @@ std::vector<std::string> list_rule_sets(const std::filesystem::path& dir);
 // a '/'. A unique beginning of an id is enough ("eu-2008"). An unknown id is an InputError
 // listing the ids with a "did you mean" hint.
 RuleSet load_rule_set(std::string_view name_or_path, const std::filesystem::path& dir);
+// Several, in order ("us-naaqs", "eu-2008", "my-agency.toml"); a name given twice is an
+// InputError (its limits would be reported twice).
+std::vector<RuleSet> load_rule_sets(const std::vector<std::string>& names_or_paths,
+                                    const std::filesystem::path& dir);
 
 // Conversion factor from a series unit to a rule's unit for one pollutant under the rule set's
 // reference conditions: value_in_rule_unit = value_in_series_unit * factor. `where` names the

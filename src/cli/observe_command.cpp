@@ -79,7 +79,7 @@ void run(const ObserveArgs& a) {
       a.rules_dir.empty() ? std::nullopt : std::optional<std::filesystem::path>(a.rules_dir));
   const auto names = split_list(a.rules);
   if (names.empty()) throw InputError("--rules", "an empty list", "rule-set ids or files");
-  for (const auto& n : names) opt.rule_sets.push_back(load_rule_set(n, dir));
+  opt.rule_sets = load_rule_sets(names, dir);
   opt.input_label = "observations " + a.observations;
   const auto report = compute_standards_report(obs.series, std::move(opt));
   std::string prefix = a.prefix;
