@@ -99,9 +99,23 @@ UtcSeconds lst_day_start_utc(std::int64_t day, int lst_offset_s) {
 
 std::string format_day(std::int64_t day) {
   const cc::Ymd d = cc::ymd_from_days(day);
-  char buf[16];
-  std::snprintf(buf, sizeof buf, "%04d-%02d-%02d", d.year, d.month, d.day);
-  return buf;
+  if (d.year < 0 || d.year > 9999) {
+    char buf[24];
+    std::snprintf(buf, sizeof buf, "%d-%02d-%02d", d.year, d.month, d.day);
+    return buf;
+  }
+  // Digit by digit: this runs for every row of the daily tables.
+  char buf[10] = {static_cast<char>('0' + d.year / 1000),
+                  static_cast<char>('0' + d.year / 100 % 10),
+                  static_cast<char>('0' + d.year / 10 % 10),
+                  static_cast<char>('0' + d.year % 10),
+                  '-',
+                  static_cast<char>('0' + d.month / 10),
+                  static_cast<char>('0' + d.month % 10),
+                  '-',
+                  static_cast<char>('0' + d.day / 10),
+                  static_cast<char>('0' + d.day % 10)};
+  return std::string(buf, 10);
 }
 
 int year_of_day(std::int64_t day) {
