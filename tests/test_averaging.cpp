@@ -1,6 +1,7 @@
 #include <doctest/doctest.h>
 
 #include <cmath>
+#include <random>
 
 #include "../src/civil_calendar.hpp"
 #include "lidbox/averaging.hpp"
@@ -274,4 +275,38 @@ TEST_CASE("non-overlapping counting counts one 12-hour episode as two 8-hour exc
   // Highest 20 (s = 10); the windows within 8 h of it are excluded; next highest s = 18 -> 10.
   CHECK(nth_highest_non_overlapping(rm, 0, rm.size(), 1) == doctest::Approx(20.0));
   CHECK(nth_highest_non_overlapping(rm, 0, rm.size(), 2) == doctest::Approx(10.0));
+}
+
+TEST_CASE("running means equal a direct sum over each window on random series with gaps") {
+  // Property test against the definition (closed form per window), seeded.
+  const unsigned seed = 20260102;
+  MESSAGE("seed " << seed);
+  std::mt19937 rng(seed);
+  std::uniform_real_distribution<double> u(0.0, 1.0);
+  for (int trial = 0; trial < 20; ++trial) {
+    const std::size_t n = 1 + rng() % 300;
+    std::vector<double> v(n);
+    for (double& x : v) x = u(rng) < 0.2 ? NA : 100.0 * u(rng);
+    const int k = 1 + static_cast<int>(rng() % 30);
+    const int m = 1 + static_cast<int>(rng() % static_cast<unsigned>(k));
+    const auto rm = running_means(series(0, v), k, m);
+    for (std::size_t i = 0; i < n; ++i) {
+      double sum = 0.0;
+      int count = 0;
+      for (std::size_t j = i; j < std::min(n, i + static_cast<std::size_t>(k)); ++j) {
+        if (!std::isnan(v[j])) {
+          sum += v[j];
+          ++count;
+        }
+      }
+      CAPTURE(trial);
+      CAPTURE(i);
+      CHECK(rm.valid_h[i] == count);
+      if (count >= m) {
+        CHECK(rm.mean[i] == doctest::Approx(sum / count).epsilon(1e-12));
+      } else {
+        CHECK(std::isnan(rm.mean[i]));
+      }
+    }
+  }
 }

@@ -218,3 +218,34 @@ TEST_CASE("US PM10: a daily mean of 155 counts as an exceedance of 150, 154 does
   CHECK(r.allowed_exceedances == 1);
   CHECK(r.verdict == Verdict::incomplete);  // 1 allowed, and the year is far from complete
 }
+
+TEST_CASE("the same ppb value can exceed under EU reference conditions and not under US ones") {
+  // 200 ug/m3 NO2 is 200 / (46.01 / 24.049) = 104.5 ppb at 293 K, 101.3 kPa and
+  // 200 / (46.01 / 24.465) = 106.3 ppb at 298.15 K, 101.325 kPa (ideal gas, references.md 4).
+  // One hour at 105 ppb: above the EU 1-h level at EU conditions, below it at US conditions.
+  RuleSet eu = only("eu-2008-50", "NO2-1h");
+  std::vector<double> v(24, 20.0);
+  v[12] = 105.0;
+  NamedSeries s{{"NO2", HourlySeries{utc(2025, 7, 1), v, "ppb"}}};
+  CHECK(result(evaluate_limits(s, eu, 0), "NO2-1h", 2025).exceedances == 1);
+  eu.reference = kUsReferenceConditions;
+  CHECK(result(evaluate_limits(s, eu, 0), "NO2-1h", 2025).exceedances == 0);
+}
+
+TEST_CASE("EU CO: a ppm series against 10 mg/m3 on the day each 8-hour window ends") {
+  // Directive 2008/50/EC Annex XI: 10 mg/m3 maximum daily 8-hour mean, windows assigned to the
+  // day they end in. 10 mg/m3 = 10 / (28.01 / 24.049) = 8.59 ppm at 293 K, 101.3 kPa.
+  // Invented: 9 ppm during 20:00-03:59 from 1 to 2 July (UTC = LST), 1 ppm otherwise. The
+  // window 20:00-04:00 ends on 2 July: one exceedance day, 2 July.
+  const RuleSet eu = only("eu-2008-50", "CO-8h");
+  std::vector<double> v(72, 1.0);
+  for (std::size_t i = 20; i < 28; ++i) v[i] = 9.0;
+  NamedSeries s{{"CO", HourlySeries{utc(2025, 7, 1), v, "ppm"}}};
+  CHECK(result(evaluate_limits(s, eu, 0), "CO-8h", 2025).exceedances == 1);
+  const auto days = daily_statistics(s, 0);
+  for (const auto& d : days) {
+    if (std::string(d.statistic) != "daily_max_8h_24_windows") continue;
+    if (d.day == civil_calendar::days_from_ymd(2025, 7, 2)) CHECK(d.value == doctest::Approx(9.0));
+    if (d.day == civil_calendar::days_from_ymd(2025, 7, 1)) CHECK(d.value < 8.59);
+  }
+}
