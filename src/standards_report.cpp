@@ -235,7 +235,7 @@ std::string jn(double v) {
   return std::isnan(v) ? "null" : num(v);
 }
 
-std::vector<std::string> table_names(const StandardsReport& r) {
+std::vector<std::string> base_table_names(const StandardsReport& r) {
   std::vector<std::string> names = {"limits.csv", "daily.csv", "periods.csv", "episodes.csv"};
   if (r.options.with_aqi) names.emplace_back("aqi.csv");
   if (r.options.with_aqhi) names.emplace_back("aqhi.csv");
@@ -243,6 +243,13 @@ std::vector<std::string> table_names(const StandardsReport& r) {
     const std::string n = "rolling_" + std::to_string(q.window_h) + "h.csv";
     if (std::find(names.begin(), names.end(), n) == names.end()) names.push_back(n);
   }
+  return names;
+}
+
+// The names as written: with the prefix.
+std::vector<std::string> table_names(const StandardsReport& r) {
+  auto names = base_table_names(r);
+  for (auto& n : names) n = r.options.file_prefix + n;
   return names;
 }
 
@@ -395,8 +402,9 @@ std::string report_markdown(const StandardsReport& r) {
       << md(rs.legal_date) << " | " << num(rs.reference.temperature_K) << " K, "
       << num(rs.reference.pressure_Pa) << " Pa | `" << md(rs.path) << "` |\n";
   }
-  o << "\nRule entries say how each was verified in the `checked` column of `limits.csv`: SRC "
-       "(seen in a published copy), MEM (from memory, not verified), PRAC (common practice).\n";
+  o << "\nRule entries say how each was verified in the `checked` column of `" << opt.file_prefix
+    << "limits.csv`: SRC (seen in a published copy), MEM (from memory, not "
+       "verified), PRAC (common practice).\n";
   for (const auto& rs : opt.rule_sets) {
     o << "\n## " << md(rs.name) << "\n\n";
     bool any = false;
@@ -487,23 +495,23 @@ std::vector<ReportFile> render_standards_report(const StandardsReport& r) {
   files.push_back({"episodes.csv", episodes_csv(r)});
   if (r.options.with_aqi) files.push_back({"aqi.csv", aqi_csv(r)});
   if (r.options.with_aqhi) files.push_back({"aqhi.csv", aqhi_csv(r)});
-  for (const auto& name : table_names(r)) {
+  for (const auto& name : base_table_names(r)) {
     if (name.rfind("rolling_", 0) != 0) continue;
     const int k = std::stoi(name.substr(8));
     files.push_back({name, rolling_csv(r, k)});
   }
   files.push_back({"report.md", report_markdown(r)});
   files.push_back({"report.json", report_json(r)});
+  for (auto& f : files) f.name = r.options.file_prefix + f.name;
   return files;
 }
 
 std::vector<std::filesystem::path> write_standards_report(const StandardsReport& report,
-                                                          const std::filesystem::path& dir,
-                                                          const std::string& prefix) {
+                                                          const std::filesystem::path& dir) {
   std::vector<std::pair<std::filesystem::path, std::string>> out;
   std::vector<std::filesystem::path> paths;
   for (auto& f : render_standards_report(report)) {
-    paths.push_back(dir / (prefix + f.name));
+    paths.push_back(dir / f.name);
     out.emplace_back(paths.back(), std::move(f.content));
   }
   write_files_atomically(out);

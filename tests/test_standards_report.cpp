@@ -89,10 +89,17 @@ TEST_CASE("the SO2 alert episode appears with its lead time in every output") {
 TEST_CASE("report files are written atomically with the prefix") {
   const auto dir = std::filesystem::path(LIDBOX_BINARY_DIR) / "test_standards_report_out";
   std::filesystem::remove_all(dir);
-  const auto paths = write_standards_report(invented_report(), dir, "run_");
+  StandardsReport r = invented_report();
+  r.options.file_prefix = "run_";
+  const auto paths = write_standards_report(r, dir);
   CHECK(paths.size() == 9);
   for (const auto& p : paths) CHECK(std::filesystem::exists(p));
   CHECK(std::filesystem::exists(dir / "run_report.md"));
+  // The reports name the tables as written.
+  std::ifstream md(dir / "run_report.md");
+  std::stringstream text;
+  text << md.rdbuf();
+  CHECK(text.str().find("`run_limits.csv`") != std::string::npos);
   // No temporary left behind.
   for (const auto& e : std::filesystem::directory_iterator(dir)) {
     CHECK(e.path().filename().string().rfind(".", 0) != 0);

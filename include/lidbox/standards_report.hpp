@@ -39,6 +39,7 @@ struct ReportOptions {
   bool with_aqhi = true;
   std::vector<RollingRequest> rolling;  // extra running-mean tables
   std::string input_label;              // e.g. "observations obs.csv", "model run case.toml"
+  std::string file_prefix;              // written files are file_prefix + name ("obs_limits.csv")
 };
 
 struct SeriesSummary {
@@ -78,7 +79,7 @@ struct StandardsReport {
 StandardsReport compute_standards_report(const NamedSeries& series, ReportOptions options);
 
 struct ReportFile {
-  std::string name;  // without the prefix: "limits.csv", "report.md", ...
+  std::string name;  // with options.file_prefix: "obs_limits.csv", "obs_report.md", ...
   std::string content;
 };
 
@@ -87,11 +88,9 @@ std::vector<ReportFile> render_standards_report(const StandardsReport& report);
 std::string report_markdown(const StandardsReport& report);
 std::string report_json(const StandardsReport& report);
 
-// Writes the rendered files into `dir` as prefix + name, atomically (atomic_file.hpp), and
-// returns their paths.
+// Writes the rendered files into `dir`, atomically (atomic_file.hpp), and returns their paths.
 std::vector<std::filesystem::path> write_standards_report(const StandardsReport& report,
-                                                          const std::filesystem::path& dir,
-                                                          const std::string& prefix);
+                                                          const std::filesystem::path& dir);
 
 // "2024-07-01T13:00:00Z", and "+01:00" for an offset in seconds.
 std::string format_utc_instant(UtcSeconds t);

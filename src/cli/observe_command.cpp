@@ -81,10 +81,10 @@ void run(const ObserveArgs& a) {
   if (names.empty()) throw InputError("--rules", "an empty list", "rule-set ids or files");
   opt.rule_sets = load_rule_sets(names, dir);
   opt.input_label = "observations " + a.observations;
+  opt.file_prefix =
+      a.prefix.empty() ? std::filesystem::path(a.observations).stem().string() + "_" : a.prefix;
   const auto report = compute_standards_report(obs.series, std::move(opt));
-  std::string prefix = a.prefix;
-  if (prefix.empty()) prefix = std::filesystem::path(a.observations).stem().string() + "_";
-  const auto written = write_standards_report(report, a.out_dir, prefix);
+  const auto written = write_standards_report(report, a.out_dir);
   for (const auto& p : written) std::cout << "wrote " << p.string() << "\n";
   std::cerr << "lidbox observe: " << kScreeningCaution << "\n";
 }
