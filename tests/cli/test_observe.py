@@ -92,5 +92,29 @@ with tempfile.TemporaryDirectory() as tmp:
     check(rc == 2 and "--lst-offset" in se, "missing --lst-offset: %d %r" % (rc, se))
     check(not os.path.exists(out2), "nothing written for bad options")
 
+# The invented demo file in met-demo/: the EU ozone information-threshold episodes must be the
+# runs of hours above 180 ug/m3, recomputed here from the file (ideal gas at 293 K, 101.3 kPa,
+# M(O3) = 48.00 g/mol: design/references.md section 4).
+demo = os.path.join(SOURCE, "met-demo", "observations-invented.csv")
+with tempfile.TemporaryDirectory() as tmp:
+    rc, so, se = run(["observe", demo, "--rules", "eu-2008-50", "--lst-offset", "-05:00",
+                      "--issue-time", "2025-07-03T12:00Z", "--out", tmp, "--prefix", "demo_"])
+    check(rc == 0, "demo file exits 0 (got %d, %s)" % (rc, se))
+    factor = 48.00 / (8.314462618 * 293.0 / 101300.0 * 1000.0)
+    rows = [l.strip().split(",") for l in open(demo) if l.strip() and not l.startswith("#")][1:]
+    above = [(r[0], r[2] != "" and float(r[2]) * factor > 180.0) for r in rows]
+    runs, start = [], None
+    for i, (t, a) in enumerate(above + [("", False)]):
+        if a and start is None:
+            start = i
+        if not a and start is not None:
+            runs.append((above[start][0], i - start))
+            start = None
+    rep = json.load(open(os.path.join(tmp, "demo_report.json")))
+    got = [(e["start_utc"].replace(":00:00Z", ":00Z"), e["duration_h"])
+           for e in rep["episodes"] if e["rule_id"] == "O3-information"]
+    check(len(runs) > 0, "the demo has ozone above the information threshold")
+    check(got == runs, "demo O3 information episodes %s == recomputed %s" % (got, runs))
+
 print("%d failure(s)" % len(failures))
 sys.exit(1 if failures else 0)
