@@ -12,6 +12,12 @@
 
 namespace lidbox {
 
+// One output file of a run, rendered in memory.
+struct OutputFile {
+  std::string name;     // file name inside the output folder
+  std::string content;
+};
+
 // hourly.csv: one row per hour (period start/end in UTC and local civil time; met used with
 // flags; ventilation coefficient; flushing time; per pollutant the hour mean, end-of-hour mixed
 // and residual values and the parts from the background, the initial state and each sector).

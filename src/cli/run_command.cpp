@@ -1,5 +1,6 @@
 #include "run_command.hpp"
 
+#include <filesystem>
 #include <iostream>
 #include <memory>
 
@@ -33,7 +34,13 @@ void add_run_command(CLI::App& app, int& exit_code) {
     progress.finish();
     const auto files = render_run_outputs(c, met, r);
     const std::string dir = opt->output_dir.empty() ? c.output_directory : opt->output_dir;
-    const auto written = write_files_atomically(dir, files);
+    std::vector<std::pair<std::filesystem::path, std::string>> targets;
+    std::vector<std::string> written;
+    for (const auto& f : files) {
+      targets.emplace_back(std::filesystem::path(dir) / f.name, f.content);
+      written.push_back(targets.back().first.string());
+    }
+    write_files_atomically(targets);
     if (!opt->quiet) {
       std::cout << files[2].content << "\nWritten:";
       for (const auto& w : written) std::cout << ' ' << w;
