@@ -24,6 +24,18 @@ std::filesystem::path temporary_for(const std::filesystem::path& target) {
 
 }  // namespace
 
+std::vector<std::filesystem::path> write_output_files(const std::filesystem::path& dir,
+                                                      const std::vector<OutputFile>& files) {
+  std::vector<std::pair<std::filesystem::path, std::string>> targets;
+  std::vector<std::filesystem::path> paths;
+  for (const auto& f : files) {
+    targets.emplace_back(dir / f.name, f.content);
+    paths.push_back(dir / f.name);
+  }
+  write_files_atomically(targets);
+  return paths;
+}
+
 void write_file_atomically(const std::filesystem::path& path, std::string_view content) {
   write_files_atomically({{path, std::string(content)}});
 }

@@ -470,8 +470,8 @@ std::string report_markdown(const StandardsReport& r) {
   return o.str();
 }
 
-std::vector<ReportFile> render_standards_report(const StandardsReport& r) {
-  std::vector<ReportFile> files;
+std::vector<OutputFile> render_standards_report(const StandardsReport& r) {
+  std::vector<OutputFile> files;
   files.push_back({"limits.csv", limits_csv(r)});
   files.push_back({"daily.csv", daily_csv(r)});
   files.push_back({"periods.csv", periods_csv(r)});
@@ -491,14 +491,7 @@ std::vector<ReportFile> render_standards_report(const StandardsReport& r) {
 
 std::vector<std::filesystem::path> write_standards_report(const StandardsReport& report,
                                                           const std::filesystem::path& dir) {
-  std::vector<std::pair<std::filesystem::path, std::string>> out;
-  std::vector<std::filesystem::path> paths;
-  for (auto& f : render_standards_report(report)) {
-    paths.push_back(dir / f.name);
-    out.emplace_back(paths.back(), std::move(f.content));
-  }
-  write_files_atomically(out);
-  return paths;
+  return write_output_files(dir, render_standards_report(report));
 }
 
 }  // namespace lidbox

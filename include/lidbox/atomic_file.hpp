@@ -12,6 +12,16 @@
 
 namespace lidbox {
 
+// One file of an output set, rendered in memory.
+struct OutputFile {
+  std::string name;  // file name inside the output folder
+  std::string content;
+};
+
+// Writes a set of rendered files into `dir` (write_files_atomically) and returns their paths.
+std::vector<std::filesystem::path> write_output_files(const std::filesystem::path& dir,
+                                                      const std::vector<OutputFile>& files);
+
 // Creates missing parent folders. Failure is an InputError naming the path and the reason
 // (the user chose the output place), after the temporaries are removed.
 void write_file_atomically(const std::filesystem::path& path, std::string_view content);

@@ -18,6 +18,7 @@
 #include <vector>
 
 #include "lidbox/aqhi.hpp"
+#include "lidbox/atomic_file.hpp"
 #include "lidbox/aqi.hpp"
 #include "lidbox/episodes.hpp"
 #include "lidbox/rule_set.hpp"
@@ -78,13 +79,9 @@ struct StandardsReport {
 // Computes every table. InputError for series the rules cannot use (unit conversions).
 StandardsReport compute_standards_report(const NamedSeries& series, ReportOptions options);
 
-struct ReportFile {
-  std::string name;  // with options.file_prefix: "obs_limits.csv", "obs_report.md", ...
-  std::string content;
-};
-
-// Renders every file in memory (no I/O), so nothing is written when rendering fails.
-std::vector<ReportFile> render_standards_report(const StandardsReport& report);
+// Renders every file in memory (no I/O), so nothing is written when rendering fails. File names
+// carry options.file_prefix: "obs_limits.csv", "obs_report.md", ...
+std::vector<OutputFile> render_standards_report(const StandardsReport& report);
 std::string report_markdown(const StandardsReport& report);
 std::string report_json(const StandardsReport& report);
 
