@@ -1,50 +1,77 @@
 #include "lidbox/atomic_file.hpp"
 
 #include <unistd.h>
-
-#include <cstdio>
-#include <filesystem>
+#include <cerrno>
+#include <cstring>
 #include <fstream>
+#include <system_error>
 
 #include "lidbox/error.hpp"
 
 namespace lidbox {
 
-std::vector<std::string> write_files_atomically(const std::string& directory,
-                                                const std::vector<OutputFile>& files) {
-  namespace fs = std::filesystem;
-  std::error_code ec;
-  fs::create_directories(directory, ec);
-  if (ec) {
-    throw InputError(directory, "the output folder cannot be created (" + ec.message() + ")",
-                     "a writable folder");
-  }
-  const std::string tag = ".tmp-" + std::to_string(::getpid());
-  std::vector<std::string> temps;
-  auto cleanup = [&temps] {
-    for (const auto& t : temps) std::remove(t.c_str());
-  };
+namespace {
+
+std::filesystem::path temporary_for(const std::filesystem::path& target) {
+  // The process id keeps two lidbox runs writing the same folder from sharing a temporary.
+  return target.parent_path() /
+         ("." + target.filename().string() + ".tmp-" + std::to_string(::getpid()));
+}
+
+[[noreturn]] void fail(const std::filesystem::path& p, const std::string& why) {
+  throw InputError(p.string(), "cannot be written (" + why + ")", "a writable output folder");
+}
+
+}  // namespace
+
+std::vector<std::filesystem::path> write_output_files(const std::filesystem::path& dir,
+                                                      const std::vector<OutputFile>& files) {
+  std::vector<std::pair<std::filesystem::path, std::string>> targets;
+  std::vector<std::filesystem::path> paths;
   for (const auto& f : files) {
-    const std::string tmp = (fs::path(directory) / ("." + f.name + tag)).string();
-    temps.push_back(tmp);
-    std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
-    out.write(f.content.data(), static_cast<std::streamsize>(f.content.size()));
-    out.close();
-    if (!out) {
-      cleanup();
-      throw InputError(tmp, "the file cannot be written", "a writable output folder with free space");
-    }
+    targets.emplace_back(dir / f.name, f.content);
+    paths.push_back(dir / f.name);
   }
-  std::vector<std::string> written;
-  for (std::size_t i = 0; i < files.size(); ++i) {
-    const std::string final_path = (fs::path(directory) / files[i].name).string();
-    if (std::rename(temps[i].c_str(), final_path.c_str()) != 0) {
-      cleanup();
-      throw InputError(final_path, "the file cannot be put in place", "a writable output folder");
+  write_files_atomically(targets);
+  return paths;
+}
+
+void write_file_atomically(const std::filesystem::path& path, std::string_view content) {
+  write_files_atomically({{path, std::string(content)}});
+}
+
+void write_files_atomically(
+    const std::vector<std::pair<std::filesystem::path, std::string>>& files) {
+  std::vector<std::filesystem::path> temps;
+  auto cleanup = [&temps] {
+    std::error_code ignored;
+    for (const auto& t : temps) std::filesystem::remove(t, ignored);
+  };
+  try {
+    for (const auto& [target, content] : files) {
+      const auto dir = target.parent_path();
+      if (!dir.empty()) {
+        std::error_code ec;
+        std::filesystem::create_directories(dir, ec);
+        if (ec) fail(dir, ec.message());
+      }
+      const auto tmp = temporary_for(target);
+      temps.push_back(tmp);
+      std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
+      if (!out) fail(target, std::strerror(errno));
+      out.write(content.data(), static_cast<std::streamsize>(content.size()));
+      out.close();
+      if (!out) fail(target, "write failed");
     }
-    written.push_back(final_path);
+    for (std::size_t i = 0; i < files.size(); ++i) {
+      std::error_code ec;
+      std::filesystem::rename(temps[i], files[i].first, ec);
+      if (ec) fail(files[i].first, ec.message());
+    }
+  } catch (...) {
+    cleanup();
+    throw;
   }
-  return written;
 }
 
 }  // namespace lidbox

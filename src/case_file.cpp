@@ -8,6 +8,7 @@
 #include <map>
 #include <set>
 
+#include "lidbox/averaging.hpp"
 #include "lidbox/error.hpp"
 #include "lidbox/text.hpp"
 #include "lidbox/units.hpp"
@@ -190,6 +191,17 @@ class TableReader {
   std::string name_;
   std::vector<std::string> allowed_;
 };
+
+bool parse_whole(const std::string& text, int& out) {
+  if (text.empty() || text.size() > 6) return false;
+  int v = 0;
+  for (char ch : text) {
+    if (ch < '0' || ch > '9') return false;
+    v = v * 10 + (ch - '0');
+  }
+  out = v;
+  return true;
+}
 
 // Tables in source order (toml++ keeps keys sorted).
 std::vector<std::pair<std::string, const toml::table*>> tables_in_order(const toml::table& t,
@@ -401,7 +413,7 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   c.file = file;
   TableReader top(root, file, "(top level)",
                   {"name", "title", "invented", "time_zone", "airshed", "met", "model", "pollutants",
-                   "sectors", "output"});
+                   "sectors", "standards", "output"});
   top.check_keys();
   c.name = top.required_string("name");
   if (c.name.empty() || c.name.find_first_of("/\\ ") != std::string::npos) {
@@ -553,6 +565,51 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
                                            r.number_array("month"), r.where_table());
       c.sectors.push_back(std::move(s));
     }
+  }
+
+  if (const toml::table* st = top.optional_table("standards")) {
+    TableReader r(*st, file, "[standards]",
+                  {"rule_sets", "rules_dir", "aqi_table", "aqi", "aqhi", "issue_time", "rolling"});
+    r.check_keys();
+    StandardsSpec s;
+    const toml::node* sets = r.get("rule_sets");
+    const toml::array* arr = sets ? sets->as_array() : nullptr;
+    if (!arr || arr->empty()) {
+      throw InputError(sets ? r.where("rule_sets") : r.where_table(), sets ? "not a non-empty array" : "no \"rule_sets\"",
+                       "rule_sets = [\"us-naaqs\", \"eu-2008-50\"] (ids of src/rules or paths of TOML files)");
+    }
+    for (const auto& el : *arr) {
+      if (!el.is_string()) throw InputError(r.where("rule_sets"), "an element that is not a string", "rule-set ids or paths");
+      std::string v(el.as_string()->get());
+      const std::filesystem::path p(v);
+      if (p.extension() == ".toml" && p.is_relative()) v = (std::filesystem::path(base_dir) / p).string();
+      s.rule_sets.push_back(v);
+    }
+    if (auto d = r.optional_string("rules_dir")) {
+      const std::filesystem::path p(*d);
+      s.rules_dir = p.is_relative() ? (std::filesystem::path(base_dir) / p).string() : *d;
+    }
+    s.aqi_table = r.optional_string("aqi_table").value_or("2024");
+    s.aqi = r.optional_bool("aqi").value_or(true);
+    s.aqhi = r.optional_bool("aqhi").value_or(true);
+    if (auto t = r.optional_string("issue_time")) s.issue_time_utc = parse_iso8601(*t, &c.zone, r.where("issue_time"));
+    if (const toml::node* rn = r.get("rolling")) {
+      const toml::array* ra = rn->as_array();
+      if (!ra) throw InputError(r.where("rolling"), "not an array", "an array such as [\"8:6\", \"24\"]");
+      for (const auto& el : *ra) {
+        const std::string spec = el.is_string() ? std::string(el.as_string()->get()) : "";
+        int k = 0, m = 0;
+        const auto colon = spec.find(':');
+        const bool ok = parse_whole(spec.substr(0, colon), k) &&
+                        (colon == std::string::npos ? (m = min_valid_count(k), true) : parse_whole(spec.substr(colon + 1), m));
+        if (!ok || k < 1 || m < 1 || m > k || k > 8784) {
+          throw InputError(r.where("rolling"), "\"" + spec + "\"",
+                           "\"K\" or \"K:M\": K-hour windows with at least M valid hours, 1 <= M <= K <= 8784");
+        }
+        s.rolling_h.emplace_back(k, m);
+      }
+    }
+    c.standards = s;
   }
 
   c.output_directory = (std::filesystem::path("outputs") / c.name).string();

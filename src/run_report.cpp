@@ -6,6 +6,7 @@
 #include <sstream>
 
 #include "lidbox/caution.hpp"
+#include "lidbox/run_standards.hpp"
 
 namespace lidbox {
 
@@ -88,7 +89,8 @@ std::string render_budget_csv(const CaseSpec& c, const RunResult& r) {
   return o.str();
 }
 
-std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunResult& r) {
+std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunResult& r,
+                           const StandardsReport* standards) {
   std::ostringstream o;
   const std::size_t n = r.hours.size();
   o << "lidbox " << LIDBOX_VERSION << " | case " << c.name;
@@ -157,6 +159,7 @@ std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunRes
     o << b;
   }
   o << "\n";
+  if (standards) o << "\n" << standards_summary(*standards);
   return o.str();
 }
 
@@ -288,11 +291,16 @@ std::string render_chart_svg(const CaseSpec& c, const RunResult& r) {
   return o.str();
 }
 
-std::vector<OutputFile> render_run_outputs(const CaseSpec& c, const MetSeries& met, const RunResult& r) {
-  return {{"hourly.csv", render_hourly_csv(c, r)},
-          {"budget.csv", render_budget_csv(c, r)},
-          {"summary.txt", render_summary(c, met, r)},
-          {"chart.svg", render_chart_svg(c, r)}};
+std::vector<OutputFile> render_run_outputs(const CaseSpec& c, const MetSeries& met, const RunResult& r,
+                                           const StandardsReport* standards) {
+  std::vector<OutputFile> files = {{"hourly.csv", render_hourly_csv(c, r)},
+                                   {"budget.csv", render_budget_csv(c, r)},
+                                   {"summary.txt", render_summary(c, met, r, standards)},
+                                   {"chart.svg", render_chart_svg(c, r)}};
+  if (standards) {
+    for (auto& f : render_standards_report(*standards)) files.push_back(std::move(f));
+  }
+  return files;
 }
 
 }  // namespace lidbox

@@ -371,7 +371,7 @@ UtcSeconds parse_iso8601(std::string_view text, const TimeZone* zone_for_naive,
   const std::string_view rest = s.substr(pos);
   if (rest.empty()) {
     if (!zone_for_naive) {
-      throw bad("has no UTC offset and the case names no time zone");
+      throw bad("has no UTC offset, and no time zone is given for times without one");
     }
     return zone_for_naive->from_civil(c, where);
   }

@@ -28,8 +28,9 @@ TEST_CASE("an ISO time without an offset needs a zone, and bad times are refused
     FAIL("no error");
   } catch (const InputError& e) {
     CHECK(std::string(e.what()) ==
-          "met.csv:4: time \"2026-01-05T13:00\" has no UTC offset and the case names no time "
-          "zone; expected an ISO 8601 time such as 2026-01-05T13:00:00Z or 2026-01-05T14:00+01:00");
+          "met.csv:4: time \"2026-01-05T13:00\" has no UTC offset, and no time zone is given for "
+          "times without one; expected an ISO 8601 time such as 2026-01-05T13:00:00Z or "
+          "2026-01-05T14:00+01:00");
   }
   CHECK_THROWS_AS((void)parse_iso8601("2026-02-30T00:00Z", nullptr, "t"), InputError);
   CHECK_THROWS_AS((void)parse_iso8601("2026-01-05T13:00:00.5Z", nullptr, "t"), InputError);

@@ -1,23 +1,34 @@
-// Output files are written whole or not at all: every file goes to a temporary name in its
-// destination folder and is renamed into place only when all of them were written; on any
-// failure while writing, the temporaries are removed and nothing of the set is left behind.
-// (Renames come last and stay within one folder; one failing half-way could leave the files
-// renamed before it - not seen in practice, and stated here rather than hidden.)
+// Output files are written whole or not at all: each goes to a temporary file in the same folder
+// (same file system, so the rename is atomic on POSIX), and only when every temporary is
+// complete are they renamed over their targets. A reader never sees half a file, and an error
+// leaves earlier versions of the targets untouched.
 #pragma once
 
+#include <filesystem>
 #include <string>
+#include <string_view>
+#include <utility>
 #include <vector>
 
 namespace lidbox {
 
+// One file of an output set, rendered in memory.
 struct OutputFile {
-  std::string name;     // file name inside the folder
-  std::string content;  // bytes to write
+  std::string name;  // file name inside the output folder
+  std::string content;
 };
 
-// Creates `directory` if needed. Returns the paths written. Failure is an InputError naming the
-// path (an output folder that cannot be written is the user's to fix).
-std::vector<std::string> write_files_atomically(const std::string& directory,
-                                                const std::vector<OutputFile>& files);
+// Writes a set of rendered files into `dir` (write_files_atomically) and returns their paths.
+std::vector<std::filesystem::path> write_output_files(const std::filesystem::path& dir,
+                                                      const std::vector<OutputFile>& files);
+
+// Creates missing parent folders. Failure is an InputError naming the path and the reason
+// (the user chose the output place), after the temporaries are removed.
+void write_file_atomically(const std::filesystem::path& path, std::string_view content);
+
+// Every temporary is written before the first rename, so a failure while writing (full disk,
+// unwritable folder) leaves all targets untouched; a failing rename can only come after that.
+void write_files_atomically(
+    const std::vector<std::pair<std::filesystem::path, std::string>>& files);
 
 }  // namespace lidbox

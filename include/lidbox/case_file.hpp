@@ -60,6 +60,17 @@ struct MetSpec {
   int max_gap_hours = 3;
 };
 
+// Which rule sets the run's hour means are judged against (rule_set.hpp, standards_report.hpp).
+struct StandardsSpec {
+  std::vector<std::string> rule_sets;  // ids ("us-naaqs") or TOML paths resolved against the case
+  std::string rules_dir;               // empty: $LIDBOX_RULES_DIR, else the shipped src/rules
+  std::string aqi_table = "2024";      // US AQI breakpoints: "2024" or "2018"
+  bool aqi = true;
+  bool aqhi = true;
+  std::optional<UtcSeconds> issue_time_utc;    // forecast issue time, for episode lead times
+  std::vector<std::pair<int, int>> rolling_h;  // extra running-mean tables: (window, min valid)
+};
+
 struct CaseSpec {
   std::string file;  // the case file as named by the user
   std::string name;
@@ -73,6 +84,7 @@ struct CaseSpec {
   int spin_up_max_days = 60;
   std::vector<PollutantSpec> pollutants;
   std::vector<EmissionSector> sectors;  // rates per pollutant in the order of `pollutants`
+  std::optional<StandardsSpec> standards;  // absent: no standards tables
   std::string output_directory;         // default outputs/<name>
   bool invented = false;                // the case says its scenario is invented
 };

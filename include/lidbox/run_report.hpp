@@ -8,6 +8,7 @@
 #include "lidbox/atomic_file.hpp"
 #include "lidbox/case_file.hpp"
 #include "lidbox/run.hpp"
+#include "lidbox/standards_report.hpp"
 #include "lidbox/text.hpp"
 
 namespace lidbox {
@@ -19,11 +20,16 @@ std::string render_hourly_csv(const CaseSpec& c, const RunResult& r);
 // budget.csv: one row per hour and pollutant, every budget line in g/h over the footprint, the
 // masses at the end of the hour in g and the cumulative closure in g.
 std::string render_budget_csv(const CaseSpec& c, const RunResult& r);
-// The short text summary (also printed by the command line).
-std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunResult& r);
+// The short text summary (also printed by the command line), with the standards' verdicts when
+// the case names rule sets.
+std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunResult& r,
+                           const StandardsReport* standards = nullptr);
 // chart.svg: mixing height and wind, then each pollutant's hour means stacked by part.
 std::string render_chart_svg(const CaseSpec& c, const RunResult& r);
 
-std::vector<OutputFile> render_run_outputs(const CaseSpec& c, const MetSeries& met, const RunResult& r);
+// Every file of a run: the four above, then the standards tables and reports (limits.csv,
+// daily.csv, periods.csv, aqi.csv, aqhi.csv, episodes.csv, report.md, report.json) when given.
+std::vector<OutputFile> render_run_outputs(const CaseSpec& c, const MetSeries& met, const RunResult& r,
+                                           const StandardsReport* standards = nullptr);
 
 }  // namespace lidbox

@@ -6,17 +6,19 @@
 #include "lidbox/caution.hpp"
 #include "lidbox/error.hpp"
 #include "metdump_command.hpp"
+#include "observe_command.hpp"
 #include "run_command.hpp"
 
 int main(int argc, char** argv) {
   CLI::App app{std::string("lidbox ") + LIDBOX_VERSION +
                ": hour-by-hour box balance of an urban airshed (mixing height, wind, emissions, "
-               "residual layer) with its mass budget.\n" +
+               "residual layer) with its mass budget, standard averages and episodes.\n" +
                lidbox::kScreeningCaution};
   app.set_version_flag("--version", std::string("lidbox ") + LIDBOX_VERSION);
   app.require_subcommand(1);
   int exit_code = 0;
   lidbox::cli::add_run_command(app, exit_code);
+  lidbox::cli::add_observe_command(app, exit_code);
   lidbox::cli::add_met_dump_command(app, exit_code);
   try {
     app.parse(argc, argv);

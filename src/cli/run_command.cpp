@@ -1,5 +1,6 @@
 #include "run_command.hpp"
 
+#include <filesystem>
 #include <iostream>
 #include <memory>
 
@@ -7,6 +8,7 @@
 #include "lidbox/case_file.hpp"
 #include "lidbox/run.hpp"
 #include "lidbox/run_report.hpp"
+#include "lidbox/run_standards.hpp"
 #include "progress.hpp"
 
 namespace lidbox::cli {
@@ -15,6 +17,7 @@ namespace {
 struct RunOptions {
   std::string case_file;
   std::string output_dir;
+  std::string issue_time;
   bool quiet = false;
 };
 }  // namespace
@@ -25,6 +28,9 @@ void add_run_command(CLI::App& app, int& exit_code) {
       app.add_subcommand("run", "Run a case: integrate the box hour by hour and write its tables");
   run->add_option("case", opt->case_file, "Case file (TOML)")->required();
   run->add_option("-o,--output", opt->output_dir, "Output folder (default: outputs/<case name>)");
+  run->add_option("--issue-time", opt->issue_time,
+                  "Forecast issue time (ISO 8601) for the lead time of alert episodes; overrides "
+                  "[standards] issue_time");
   run->add_flag("-q,--quiet", opt->quiet, "Print nothing on success");
   run->callback([opt, &exit_code] {
     const CaseSpec c = load_case(opt->case_file);
@@ -33,12 +39,15 @@ void add_run_command(CLI::App& app, int& exit_code) {
     const RunResult r =
         run_case(c, met, [&progress](double f, const char* stage) { progress.update(f, stage); });
     progress.finish();
-    const auto files = render_run_outputs(c, met, r);
+    std::optional<UtcSeconds> issue;
+    if (!opt->issue_time.empty()) issue = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
+    const auto standards = run_standards(c, r, issue);
+    const auto files = render_run_outputs(c, met, r, standards ? &*standards : nullptr);
     const std::string dir = opt->output_dir.empty() ? c.output_directory : opt->output_dir;
-    const auto written = write_files_atomically(dir, files);
+    const auto written = write_output_files(dir, files);
     if (!opt->quiet) {
       std::cout << files[2].content << "\nWritten:";
-      for (const auto& w : written) std::cout << ' ' << w;
+      for (const auto& w : written) std::cout << ' ' << w.string();
       std::cout << '\n';
     }
     exit_code = 0;

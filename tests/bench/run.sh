@@ -1,14 +1,13 @@
-#!/usr/bin/env bash
-# Runs every benchmark target (tests/bench/bench_*.cpp) from the build folder; each prints its own
-# figures and its ratio against a reference run in the same invocation.
-# Usage: tests/bench/run.sh <build dir> <source dir>
+#!/bin/bash
+# Runs every benchmark piece tests/bench/*.sh (except this file) with <build-dir> <source-dir>.
+# Add a benchmark by adding a piece; each prints its own figures.
 set -euo pipefail
 build=$1
-source=$2
-python=${LIDBOX_PYTHON:-/usr/bin/python3}
-cd "$build"
-for src in "$source"/tests/bench/bench_*.cpp; do
-  name=$(basename "$src" .cpp)
-  echo "== $name"
-  "./$name" "$source" "$python"
+src=$2
+status=0
+for piece in "$src"/tests/bench/*.sh; do
+  [ "$(basename "$piece")" = "run.sh" ] && continue
+  echo "== $(basename "$piece" .sh)"
+  bash "$piece" "$build" "$src" || status=1
 done
+exit $status

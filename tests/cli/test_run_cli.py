@@ -42,7 +42,8 @@ def test_demo():
         check("Period   2026-01-12T07:00:00Z to 2026-01-19T07:00:00Z (168 hours)" in p.stdout,
               "summary states the period")
         check("2 h gap-filled (linear interpolation)" in p.stdout, "summary counts the filled hours")
-        for name in ("hourly.csv", "budget.csv", "summary.txt", "chart.svg"):
+        for name in ("hourly.csv", "budget.csv", "summary.txt", "chart.svg", "limits.csv", "daily.csv",
+                     "periods.csv", "episodes.csv", "aqi.csv", "aqhi.csv", "report.md", "report.json"):
             check(os.path.isfile(os.path.join(d, "out", name)), "demo writes " + name)
         leftovers = [f for f in os.listdir(os.path.join(d, "out")) if f.startswith(".")]
         check(leftovers == [], "no temporary files left behind")
@@ -60,6 +61,22 @@ def test_demo():
         check(worst < 2e-6, "parts add up to the total in every row (worst %.1e)" % worst)
         check(sum(int(r["met_filled"]) for r in rows) == 2, "two filled hours flagged")
         check(any(int(r["calm_floor_applied"]) for r in rows), "calm-floor hours flagged")
+        # The standards' daily means are the LST-day means of the hourly table (40 CFR 50 App. N
+        # 1(c): midnight to midnight local standard time; the case's zone is UTC-7 in winter).
+        with open(os.path.join(d, "out", "daily.csv")) as f:
+            daily = [r for r in csv.DictReader(f) if r["pollutant"] == "PM2.5" and r["statistic"] == "daily_mean"]
+        by_day = {}
+        for row in rows:
+            day = row["period_start_local"][:10]  # civil = standard time in January
+            by_day.setdefault(day, []).append(float(row["PM25_hour_mean [ug m-3]"]))
+        worst_day = max(abs(float(r["value"]) - sum(by_day[r["date_lst"]]) / len(by_day[r["date_lst"]]))
+                        for r in daily if r["complete"] == "true")
+        check(len(daily) == 7 and worst_day < 1e-5,
+              "daily PM2.5 means recomputed from hourly.csv (%d days, worst %.1e)" % (len(daily), worst_day))
+        with open(os.path.join(d, "out", "report.md")) as f:
+            md = f.read()
+        check(md.count("Screening estimate from a single well-mixed box model") >= 1, "report.md carries the caution")
+        check("40 CFR Part 50" in md and "Directive 2008/50/EC" in md, "report.md names the legal sources")
         with open(os.path.join(d, "out", "budget.csv")) as f:
             budget = list(csv.DictReader(f))
         check(len(budget) == 2 * 168, "budget rows per hour and pollutant")
