@@ -290,8 +290,9 @@ CfTable daily_cf_table(const std::vector<CfDailySeries>& series, int lst_offset_
   bool any = false;
   std::int64_t d0 = 0, d1 = 0;
   for (const auto& s : series) {
-    if (!s.valid_count.empty() && s.valid_count.size() != s.values.size()) {
-      throw InternalError("daily series \"" + s.name + "\" with mismatched valid counts");
+    if ((!s.valid_count.empty() && s.valid_count.size() != s.values.size()) ||
+        (!s.complete.empty() && s.complete.size() != s.values.size())) {
+      throw InternalError("daily series \"" + s.name + "\" with mismatched counts or flags");
     }
     if (s.values.empty()) continue;
     const std::int64_t last = s.first_day + static_cast<std::int64_t>(s.values.size()) - 1;
@@ -322,13 +323,25 @@ CfTable daily_cf_table(const std::vector<CfDailySeries>& series, int lst_offset_
       c.values.assign(n, 0.0);
       v.attributes["ancillary_variables"] = c.name;  // CF 3.4
     }
+    CfVariable done;
+    if (!s.complete.empty()) {
+      done.name = s.name + "_complete";
+      done.long_name = "day complete enough for " + s.name;
+      done.flag_values = {0, 1};
+      done.flag_meanings = "incomplete complete";
+      done.values.assign(n, 0.0);
+      const std::string anc = v.attributes["ancillary_variables"];
+      v.attributes["ancillary_variables"] = anc.empty() ? done.name : anc + " " + done.name;
+    }
     for (std::size_t k = 0; k < s.values.size(); ++k) {
       const auto row = static_cast<std::size_t>(s.first_day - d0) + k;
       v.values[row] = s.values[k];
       if (!s.valid_count.empty()) c.values[row] = s.valid_count[k];
+      if (!s.complete.empty()) done.values[row] = s.complete[k] ? 1.0 : 0.0;
     }
     t.vars.push_back(std::move(v));
     if (!s.valid_count.empty()) t.vars.push_back(std::move(c));
+    if (!s.complete.empty()) t.vars.push_back(std::move(done));
   }
   const int a = lst_offset_s < 0 ? -lst_offset_s : lst_offset_s;
   char buf[32];

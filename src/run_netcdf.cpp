@@ -1,8 +1,11 @@
 #include "lidbox/run_netcdf.hpp"
 
+#include <algorithm>
 #include <cctype>
+#include <cmath>
 #include <cstdio>
 
+#include "lidbox/error.hpp"
 #include "lidbox/netcdf_met.hpp"
 
 namespace lidbox {
@@ -28,10 +31,8 @@ std::string number(double v) {
   return buf;
 }
 
-CfTable base_table(const CaseSpec& c, const RunResult& r, const std::string& what) {
-  CfTable t;
-  for (const auto& h : r.hours) t.time_utc.push_back(h.start_utc);
-  t.period_s = kSecondsPerHour;
+// Title, history, station and the case's global attributes.
+void describe_case(CfTable& t, const CaseSpec& c, const std::string& what) {
   t.title = "lidbox " + what + ": " + c.title;
   t.history = "lidbox run " + c.file;
   t.station_name = c.name;
@@ -45,6 +46,14 @@ CfTable base_table(const CaseSpec& c, const RunResult& r, const std::string& wha
         "INVENTED scenario: the case says its inputs are invented; nothing here describes a real "
         "place or real measurements.";
   }
+}
+
+// A table on the run's hours, described as the case.
+CfTable hours_table(const CaseSpec& c, const RunResult& r, const std::string& what) {
+  CfTable t;
+  for (const auto& h : r.hours) t.time_utc.push_back(h.start_utc);
+  t.period_s = kSecondsPerHour;
+  describe_case(t, c, what);
   return t;
 }
 
@@ -92,7 +101,7 @@ std::string pollutant_standard_name(const std::string& pollutant, bool mixing_ra
 }
 
 CfTable hourly_cf_table(const CaseSpec& c, const RunResult& r) {
-  CfTable t = base_table(c, r, "hourly results");
+  CfTable t = hours_table(c, r, "hourly results");
   const std::size_t n = r.hours.size();
   auto h = var("mixing_height", "atmosphere_boundary_layer_thickness",
                "mixing height used (after the floor)", "m", kHourMean);
@@ -169,7 +178,7 @@ CfTable hourly_cf_table(const CaseSpec& c, const RunResult& r) {
 }
 
 CfTable budget_cf_table(const CaseSpec& c, const RunResult& r) {
-  CfTable t = base_table(c, r, "mass budget");
+  CfTable t = hours_table(c, r, "mass budget");
   t.global_attributes["footprint_area_m2"] = number(c.footprint.area_m2());
   const double A = c.footprint.area_m2();
   const bool rl = c.engine.residual_layer;
@@ -226,10 +235,76 @@ CfTable budget_cf_table(const CaseSpec& c, const RunResult& r) {
   return t;
 }
 
+CfTable daily_statistics_cf_table(const CaseSpec& c, const StandardsReport& report) {
+  if (report.daily.empty()) throw InternalError("a standards report without daily rows");
+  // One series per (pollutant, statistic), in the order the report lists them.
+  std::vector<std::pair<std::string, std::vector<const DailyStatisticsRow*>>> groups;
+  for (const auto& row : report.daily) {
+    const std::string key = row.pollutant + "\n" + row.statistic;
+    auto it =
+        std::find_if(groups.begin(), groups.end(), [&](const auto& g) { return g.first == key; });
+    if (it == groups.end()) {
+      groups.emplace_back(key, std::vector<const DailyStatisticsRow*>{});
+      it = groups.end() - 1;
+    }
+    it->second.push_back(&row);
+  }
+  std::vector<CfDailySeries> series;
+  for (const auto& [key, rows] : groups) {
+    const DailyStatisticsRow& r0 = *rows.front();
+    const std::string stat = r0.statistic;
+    std::int64_t d0 = r0.day, d1 = r0.day;
+    for (const auto* r : rows) {
+      d0 = std::min(d0, r->day);
+      d1 = std::max(d1, r->day);
+    }
+    CfDailySeries s;
+    s.name = cf_variable_name(r0.pollutant) + "_" + stat;
+    const bool ratio = r0.unit == "ppm" || r0.unit == "ppb" || r0.unit == "ppt";
+    s.standard_name = pollutant_standard_name(r0.pollutant, ratio);
+    s.long_name = r0.pollutant + " " + stat + " (local standard time day)";
+    s.units = r0.unit == "ppm"   ? "1e-6"
+              : r0.unit == "ppb" ? "1e-9"
+              : r0.unit == "ppt" ? "1e-12"
+                                 : r0.unit;
+    if (stat == "daily_mean") {
+      s.cell_methods = "time: mean (interval: 1 hour)";
+    } else if (stat == "daily_max_1h") {
+      s.cell_methods = "time: maximum (interval: 1 hour)";
+    } else {
+      s.cell_methods = "time: maximum";
+      s.comment = "maximum over the day of running 8-hour means (" + stat + ")";
+    }
+    s.first_day = d0;
+    const auto n = static_cast<std::size_t>(d1 - d0 + 1);
+    s.values.assign(n, std::nan(""));
+    s.valid_count.assign(n, 0);
+    s.complete.assign(n, 0);
+    s.possible_count = r0.possible_count;
+    for (const auto* r : rows) {
+      const auto k = static_cast<std::size_t>(r->day - d0);
+      s.values[k] = r->value;
+      s.valid_count[k] = r->valid_count;
+      s.complete[k] = r->complete ? 1 : 0;
+    }
+    series.push_back(std::move(s));
+  }
+  CfTable t = daily_cf_table(series, report.options.lst_offset_s);
+  describe_case(t, c, "daily statistics");
+  return t;
+}
+
 std::vector<OutputFile> render_run_netcdf_outputs(const CaseSpec& c, const RunResult& r,
+                                                  const StandardsReport* standards,
                                                   CfFileFormat format) {
-  return {{"hourly.nc", render_cf_timeseries(hourly_cf_table(c, r), format)},
-          {"budget.nc", render_cf_timeseries(budget_cf_table(c, r), format)}};
+  std::vector<OutputFile> out = {
+      {"hourly.nc", render_cf_timeseries(hourly_cf_table(c, r), format)},
+      {"budget.nc", render_cf_timeseries(budget_cf_table(c, r), format)}};
+  if (standards && !standards->daily.empty()) {
+    out.push_back(
+        {"daily.nc", render_cf_timeseries(daily_statistics_cf_table(c, *standards), format)});
+  }
+  return out;
 }
 
 }  // namespace lidbox

@@ -1,5 +1,6 @@
 #include <doctest/doctest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <fstream>
 
@@ -7,6 +8,7 @@
 #include "lidbox/netcdf_met.hpp"
 #include "lidbox/run.hpp"
 #include "lidbox/run_netcdf.hpp"
+#include "lidbox/run_standards.hpp"
 #include "netcdf_fixture.hpp"
 
 using namespace lidbox;
@@ -152,4 +154,43 @@ TEST_CASE("the demo run from the NetCDF point file equals the run from the CSV d
   }
   CHECK(differing == 0);
   CHECK(a.mean_g_m3 == b.mean_g_m3);
+}
+
+TEST_CASE("the demo run's daily statistics land in daily.nc on local-standard-time days") {
+  const std::string demo = std::string(LIDBOX_SOURCE_DIR) + "/met-demo/";
+  const CaseSpec c = load_case(demo + "cindervale.toml");
+  const RunResult r = run_case(c, read_case_met(c));
+  const auto report = run_standards(c, r, std::nullopt);
+  REQUIRE(report.has_value());
+  REQUIRE(!report->daily.empty());
+  const CfTable t = daily_statistics_cf_table(c, *report);
+  // MST is UTC-7: each LST day starts at 07:00 UTC (closed form).
+  CHECK(format_utc(t.time_utc.front()).substr(10) == "T07:00:00Z");
+  CHECK(t.period_s == 86400);
+  CHECK(t.global_attributes.at("local_standard_time") == "UTC-07:00");
+  // Every row of the report is found in its variable at its day.
+  std::size_t checked = 0;
+  for (const auto& row : report->daily) {
+    const std::string name = cf_variable_name(row.pollutant) + "_" + row.statistic;
+    const auto v = std::find_if(t.vars.begin(), t.vars.end(),
+                                [&](const CfVariable& x) { return x.name == name; });
+    REQUIRE(v != t.vars.end());
+    const auto k = static_cast<std::size_t>(
+        (row.day * 86400 - report->options.lst_offset_s - t.time_utc.front()) / 86400);
+    if (std::isnan(row.value)) {
+      CHECK(std::isnan(v->values[k]));
+    } else {
+      CHECK(v->values[k] == row.value);
+    }
+    ++checked;
+  }
+  CHECK(checked == report->daily.size());
+  const auto files = render_run_netcdf_outputs(c, r, &*report);
+  REQUIRE(files.size() == 3);
+  CHECK(files[2].name == "daily.nc");
+  const std::string path = scratch_dir("run-daily") + "/daily.nc";
+  std::ofstream(path, std::ios::binary) << files[2].content;
+  CHECK(nc_text(path, "", "case_name") == "cindervale-january");
+  CHECK(nc_text(path, "PM2_5_daily_mean", "cell_methods") == "time: mean (interval: 1 hour)");
+  CHECK(nc_text(path, "PM2_5_daily_mean_complete", "flag_meanings") == "incomplete complete");
 }

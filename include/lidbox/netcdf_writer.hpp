@@ -96,6 +96,7 @@ struct CfDailySeries {
   std::vector<double> values;    // NaN when missing
   std::vector<int> valid_count;  // empty, or one per value: written as <name>_valid_count
   int possible_count = 0;        // hours (or windows) a full day has, with valid_count
+  std::vector<int> complete;     // empty, or one 0/1 per value: flag variable <name>_complete
 };
 
 // The table for write_cf_timeseries/render_cf_timeseries: `lst_offset_s` is the standard offset
