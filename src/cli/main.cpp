@@ -5,6 +5,7 @@
 
 #include "lidbox/caution.hpp"
 #include "lidbox/error.hpp"
+#include "metdump_command.hpp"
 #include "observe_command.hpp"
 #include "run_command.hpp"
 
@@ -18,6 +19,7 @@ int main(int argc, char** argv) {
   int exit_code = 0;
   lidbox::cli::add_run_command(app, exit_code);
   lidbox::cli::add_observe_command(app, exit_code);
+  lidbox::cli::add_met_dump_command(app, exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -24,7 +24,8 @@ struct RunOptions {
 
 void add_run_command(CLI::App& app, int& exit_code) {
   auto opt = std::make_shared<RunOptions>();
-  CLI::App* run = app.add_subcommand("run", "Run a case: integrate the box hour by hour and write its tables");
+  CLI::App* run =
+      app.add_subcommand("run", "Run a case: integrate the box hour by hour and write its tables");
   run->add_option("case", opt->case_file, "Case file (TOML)")->required();
   run->add_option("-o,--output", opt->output_dir, "Output folder (default: outputs/<case name>)");
   run->add_option("--issue-time", opt->issue_time,
@@ -35,7 +36,8 @@ void add_run_command(CLI::App& app, int& exit_code) {
     const CaseSpec c = load_case(opt->case_file);
     const MetSeries met = read_case_met(c);
     Progress progress;
-    const RunResult r = run_case(c, met, [&progress](double f, const char* stage) { progress.update(f, stage); });
+    const RunResult r =
+        run_case(c, met, [&progress](double f, const char* stage) { progress.update(f, stage); });
     progress.finish();
     std::optional<UtcSeconds> issue;
     if (!opt->issue_time.empty()) issue = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
