@@ -441,11 +441,66 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   const toml::table* met = top.optional_table("met");
   if (!met) throw InputError(file, "no [met] table", "a [met] table with the met file");
   {
-    TableReader r(*met, file, "[met]", {"file", "reading", "hour_label", "max_gap_hours"});
+    TableReader r(*met, file, "[met]",
+                  {"file", "format", "reading", "hour_label", "max_gap_hours", "station", "latitude",
+                   "longitude", "footprint", "member", "sub_hourly", "coarse_step", "variables"});
     r.check_keys();
     c.met.display_name = r.required_string("file");
     std::filesystem::path p(c.met.display_name);
     c.met.path = p.is_absolute() ? p.string() : (std::filesystem::path(base_dir) / p).string();
+    const std::string ext = p.extension().string();
+    const std::string format =
+        r.optional_string("format").value_or(ext == ".nc" || ext == ".nc4" || ext == ".cdf" ? "netcdf" : "csv");
+    if (format == "csv") {
+      c.met.format = MetFormat::csv;
+    } else if (format == "netcdf") {
+      c.met.format = MetFormat::netcdf;
+    } else {
+      throw InputError(r.where("format"), "\"" + format + "\"", "\"csv\" or \"netcdf\"");
+    }
+    NetcdfMetOptions& nc = c.met.netcdf;
+    nc.display_name = c.met.display_name;
+    const bool netcdf_key = r.has("station") || r.has("latitude") || r.has("longitude") ||
+                            r.has("footprint") || r.has("member") || r.has("sub_hourly") ||
+                            r.has("coarse_step") || r.has("variables");
+    if (netcdf_key && c.met.format != MetFormat::netcdf) {
+      throw InputError(r.where_table(), "NetCDF options for a CSV met file",
+                       "station, latitude/longitude, footprint, member, sub_hourly, coarse_step and "
+                       "variables only with format = \"netcdf\"");
+    }
+    if (auto st = r.optional_string("station")) nc.station_id = *st;
+    if (auto m = r.optional_integer("member")) nc.member = *m;
+    if (r.has("latitude") != r.has("longitude")) {
+      throw InputError(r.where_table(), "only one of latitude and longitude", "both, for the nearest grid cell");
+    }
+    if (r.has("latitude")) {
+      nc.point = LatLon{r.required_quantity("latitude", "degree", "latitude"),
+                        r.required_quantity("longitude", "degree", "longitude")};
+      if (nc.point->lat_deg > 90.0) nc.point->lat_deg -= 360.0;  // "-30 deg" arrives as 330
+      if (nc.point->lon_deg > 180.0) nc.point->lon_deg -= 360.0;
+    }
+    if (const toml::table* fp = r.optional_table("footprint")) {
+      TableReader rf(*fp, file, "[met.footprint]", {"south", "north", "west", "east"});
+      rf.check_keys();
+      auto deg = [&rf](const char* k, bool lat) {
+        double v = rf.required_quantity(k, "degree", lat ? "latitude" : "longitude");
+        if (v > (lat ? 90.0 : 180.0)) v -= 360.0;
+        return v;
+      };
+      nc.footprint = LatLonBox{deg("south", true), deg("north", true), deg("west", false), deg("east", false)};
+    }
+    if (nc.point && nc.footprint) {
+      throw InputError(r.where("footprint"), "both a point and a footprint", "one of them");
+    }
+    if (auto sh = r.optional_string("sub_hourly")) nc.sub_hourly = parse_sub_hourly_rule(*sh, r.where("sub_hourly"));
+    if (auto cs = r.optional_string("coarse_step")) nc.coarse = parse_coarse_step_rule(*cs, r.where("coarse_step"));
+    if (const toml::table* vars = r.optional_table("variables")) {
+      TableReader rv(*vars, file, "[met.variables]", netcdf_met_roles());
+      rv.check_keys();
+      for (const auto& role : netcdf_met_roles()) {
+        if (auto v = rv.optional_string(role)) nc.variables[role] = *v;
+      }
+    }
     const std::string reading = r.optional_string("reading").value_or("hour_average");
     if (reading == "hour_average") {
       c.met.reading = MetReading::hour_average;
@@ -461,6 +516,10 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
       c.met.hour_label = HourLabel::period_end;
     } else {
       throw InputError(r.where("hour_label"), "\"" + label + "\"", "\"period_start\" or \"period_end\"");
+    }
+    if (nc.coarse == CoarseStepRule::linear && c.met.reading != MetReading::instantaneous) {
+      throw InputError(r.where("coarse_step"), "coarse_step = \"linear\" with hour averages",
+                       "reading = \"instantaneous\": interpolated values are instants, not hour means");
     }
     if (r.has("hour_label") && c.met.reading == MetReading::instantaneous) {
       throw InputError(r.where("hour_label"), "an hour label for instantaneous values",
@@ -614,9 +673,10 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
 
   c.output_directory = (std::filesystem::path("outputs") / c.name).string();
   if (const toml::table* out = top.optional_table("output")) {
-    TableReader r(*out, file, "[output]", {"directory"});
+    TableReader r(*out, file, "[output]", {"directory", "netcdf"});
     r.check_keys();
     if (auto d = r.optional_string("directory")) c.output_directory = *d;
+    c.netcdf_output = r.optional_bool("netcdf").value_or(false);
   }
   return c;
 }

@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include "lidbox/csv_met.hpp"
+#include "lidbox/netcdf_met.hpp"
 #include "lidbox/error.hpp"
 #include "lidbox/text.hpp"
 
@@ -37,6 +38,18 @@ double RunResult::relative_closure(std::size_t p, bool residual_layer) const {
 }
 
 MetSeries read_case_met(const CaseSpec& c) {
+  if (c.met.format == MetFormat::netcdf) {
+    NetcdfMetOptions o = c.met.netcdf;
+    // Background columns named by the case are read as extra variables of the same name (or
+    // standard_name).
+    for (const auto& p : c.pollutants) {
+      if (p.background.kind == BackgroundSpec::Kind::column) o.extra[p.background.column] = p.background.column;
+    }
+    MetSeries met = read_met_netcdf(c.met.path, o);
+    fill_gaps(met, c.met.max_gap_hours);
+    validate_met(met);
+    return met;
+  }
   CsvMetOptions o;
   o.zone_for_naive_times = &c.zone;
   o.max_gap_hours = c.met.max_gap_hours;

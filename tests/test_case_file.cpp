@@ -107,3 +107,39 @@ TEST_CASE("month weights are normalised by the mean month lengths of the Gregori
   CHECK(c.month_raw_mean == doctest::Approx((365.2425 + 31.0) / 365.2425));
   CHECK_THROWS_AS((void)ClockProfile::from_weights({1, 2, 3}, {}, {}, "t"), InputError);
 }
+
+TEST_CASE("NetCDF met options in the case file are checked against the format") {
+  auto message = [](const std::string& met) {
+    std::string text = kCase;
+    text.replace(text.find("[met]\nfile = \"met.csv\""), 22, met);
+    try {
+      (void)parse_case(text, "case.toml", ".");
+    } catch (const InputError& e) {
+      return std::string(e.what());
+    }
+    return std::string("no error");
+  };
+  CHECK(message("[met]\nfile = \"met.csv\"\nmember = 2") ==
+        "case.toml:8: [met]: NetCDF options for a CSV met file; expected station, "
+        "latitude/longitude, footprint, member, sub_hourly, coarse_step and variables only with "
+        "format = \"netcdf\"");
+  CHECK(message("[met]\nfile = \"m.nc\"\nlatitude = \"41 deg\"") ==
+        "case.toml:8: [met]: only one of latitude and longitude; expected both, for the nearest "
+        "grid cell");
+  CHECK(message("[met]\nfile = \"m.nc\"\ncoarse_step = \"linear\"") ==
+        "case.toml:10: [met] coarse_step: coarse_step = \"linear\" with hour averages; expected "
+        "reading = \"instantaneous\": interpolated values are instants, not hour means");
+  CHECK(message("[met]\nfile = \"m.nc\"\n[met.variables]\nmixing_hieght = \"blh\"") ==
+        "case.toml:11: [met.variables]: unknown key \"mixing_hieght\" (did you mean "
+        "\"mixing_height\"?); expected one of mixing_height, eastward_wind, northward_wind, "
+        "wind_speed, wind_from_direction, air_temperature, surface_pressure, time");
+  // A point west of Greenwich written as a negative bearing-like angle is kept as -112 degrees.
+  std::string text = kCase;
+  text.replace(text.find("[met]\nfile = \"met.csv\""), 22,
+               "[met]\nfile = \"m.nc\"\nlatitude = \"41 deg\"\nlongitude = \"-112 deg\"\nmember = 3");
+  const CaseSpec c = parse_case(text, "case.toml", ".");
+  CHECK(c.met.format == MetFormat::netcdf);
+  REQUIRE(c.met.netcdf.point.has_value());
+  CHECK(c.met.netcdf.point->lon_deg == doctest::Approx(-112.0));
+  CHECK(*c.met.netcdf.member == 3);
+}

@@ -6,6 +6,7 @@
 #include "lidbox/error.hpp"
 #include "lidbox/run.hpp"
 #include "lidbox/run_standards.hpp"
+#include "lidbox/standards_evaluation.hpp"
 
 using namespace lidbox;
 
@@ -98,4 +99,32 @@ TEST_CASE("an unknown rule set in the case is an error with a hint") {
     CHECK(m.rfind("rule set \"who-2012\": not found in ", 0) == 0);
     CHECK(m.find("(did you mean \"who-2021\"?)") != std::string::npos);
   }
+}
+
+TEST_CASE("on the spring clock change, daily statistics keep 24-hour standard-time days") {
+  // 40 CFR 50 App. N 1(c): daily values run midnight to midnight local STANDARD time. In
+  // EST5EDT the civil day of 8 March 2026 has 23 hours (15 U.S.C. 260a), but its LST day is
+  // 05:00Z on 8 March to 05:00Z on 9 March: 24 hours. The emission clock meanwhile follows the
+  // civil clock (tested in test_run.cpp), so the 08:00 civil rush hour moves to 12:00Z.
+  std::string text = kSteady;
+  text.replace(text.find("time_zone = \"UTC\""), 17, "time_zone = \"EST5EDT,M3.2.0,M11.1.0\"");
+  const CaseSpec c = parse_case(text, "steady.toml", ".");
+  MetSeries m = steady_met(96);
+  m.first_stamp_utc = parse_iso8601("2026-03-07T05:00Z", nullptr, "t");
+  const RunResult r = run_case(c, m);
+  const NamedSeries series = run_series(c, r, nullptr);
+  const auto rows = daily_statistics(series, c.zone.standard_offset_s());
+  int days = 0;
+  for (const auto& row : rows) {
+    if (std::string(row.statistic) != "daily_mean") continue;
+    ++days;
+    CHECK(row.possible_count == 24);
+    CHECK(row.valid_count == 24);
+    CHECK(row.complete);
+  }
+  CHECK(days == 4);
+  // The hourly table's local times do follow daylight saving: 06:00Z is 01:00 EST on 8 March,
+  // 07:00Z (02:00 EST) is already 03:00 EDT.
+  CHECK(r.hours[25].civil_offset_s == -5 * 3600);
+  CHECK(r.hours[26].civil_offset_s == -4 * 3600);
 }

@@ -16,6 +16,7 @@
 #include "lidbox/emissions.hpp"
 #include "lidbox/footprint.hpp"
 #include "lidbox/met.hpp"
+#include "lidbox/netcdf_met.hpp"
 #include "lidbox/time.hpp"
 
 namespace lidbox {
@@ -52,12 +53,16 @@ struct PollutantSpec {
 
 enum class SpinUp { none, repeat_first_day };
 
+enum class MetFormat { csv, netcdf };
+
 struct MetSpec {
   std::string path;          // resolved against the case file's folder
   std::string display_name;  // as written in the case file
+  MetFormat format = MetFormat::csv;  // default from the extension: .nc/.nc4/.cdf -> netcdf
   MetReading reading = MetReading::hour_average;
   HourLabel hour_label = HourLabel::period_start;
   int max_gap_hours = 3;
+  NetcdfMetOptions netcdf;  // station, point, footprint, member, variables (NetCDF only)
 };
 
 // Which rule sets the run's hour means are judged against (rule_set.hpp, standards_report.hpp).
@@ -86,6 +91,7 @@ struct CaseSpec {
   std::vector<EmissionSector> sectors;  // rates per pollutant in the order of `pollutants`
   std::optional<StandardsSpec> standards;  // absent: no standards tables
   std::string output_directory;         // default outputs/<name>
+  bool netcdf_output = false;           // also write hourly.nc, budget.nc, daily.nc
   bool invented = false;                // the case says its scenario is invented
 };
 

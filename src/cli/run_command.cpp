@@ -8,6 +8,7 @@
 #include "lidbox/case_file.hpp"
 #include "lidbox/run.hpp"
 #include "lidbox/run_report.hpp"
+#include "lidbox/run_netcdf.hpp"
 #include "lidbox/run_standards.hpp"
 #include "progress.hpp"
 
@@ -19,6 +20,7 @@ struct RunOptions {
   std::string output_dir;
   std::string issue_time;
   bool quiet = false;
+  bool netcdf = false;
 };
 }  // namespace
 
@@ -31,6 +33,9 @@ void add_run_command(CLI::App& app, int& exit_code) {
   run->add_option("--issue-time", opt->issue_time,
                   "Forecast issue time (ISO 8601) for the lead time of alert episodes; overrides "
                   "[standards] issue_time");
+  run->add_flag("--netcdf", opt->netcdf,
+                "Also write hourly.nc, budget.nc and daily.nc (CF-1.12 timeSeries); same as "
+                "[output] netcdf = true");
   run->add_flag("-q,--quiet", opt->quiet, "Print nothing on success");
   run->callback([opt, &exit_code] {
     const CaseSpec c = load_case(opt->case_file);
@@ -42,7 +47,12 @@ void add_run_command(CLI::App& app, int& exit_code) {
     std::optional<UtcSeconds> issue;
     if (!opt->issue_time.empty()) issue = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
     const auto standards = run_standards(c, r, issue);
-    const auto files = render_run_outputs(c, met, r, standards ? &*standards : nullptr);
+    auto files = render_run_outputs(c, met, r, standards ? &*standards : nullptr);
+    if (opt->netcdf || c.netcdf_output) {
+      for (auto& f : render_run_netcdf_outputs(c, r, standards ? &*standards : nullptr)) {
+        files.push_back(std::move(f));
+      }
+    }
     const std::string dir = opt->output_dir.empty() ? c.output_directory : opt->output_dir;
     const auto written = write_output_files(dir, files);
     if (!opt->quiet) {

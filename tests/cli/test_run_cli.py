@@ -90,6 +90,34 @@ def test_demo():
         check(len(carried) > 0, "residual layer re-entrained in the morning (%d hours)" % len(carried))
 
 
+def test_netcdf_demo():
+    """The same invented met as CF-NetCDF gives the same hourly table; the run's own NetCDF output
+    opens in xarray with the values and decoded times of the CSV table."""
+    with tempfile.TemporaryDirectory() as d:
+        a = run(["run", "-q", DEMO_CASE, "-o", "csv"], d)
+        b = run(["run", "-q", os.path.join(SOURCE, "met-demo", "cindervale-netcdf.toml"), "-o", "nc"], d)
+        check(a.returncode == 0 and b.returncode == 0, "CSV and NetCDF demos exit 0 (%s)" % b.stderr.strip())
+        with open(os.path.join(d, "csv", "hourly.csv")) as f1, open(os.path.join(d, "nc", "hourly.csv")) as f2:
+            check(f1.read() == f2.read(), "NetCDF met gives a byte-identical hourly table")
+        for name in ("hourly.nc", "budget.nc", "daily.nc"):
+            check(os.path.isfile(os.path.join(d, "nc", name)), "[output] netcdf = true writes " + name)
+        try:
+            import numpy as np
+            import xarray as xr
+        except ImportError:
+            print("skip: xarray not available under", sys.executable)
+            return
+        with open(os.path.join(d, "csv", "hourly.csv")) as f:
+            rows = list(csv.DictReader(f))
+        ds = xr.open_dataset(os.path.join(d, "nc", "hourly.nc"))
+        co = ds["CO"].values
+        want = np.array([float(r["CO_hour_mean [ppm]"]) for r in rows])
+        check(np.max(np.abs(co - want) / want) < 1e-6, "xarray reads the CO hour means of hourly.csv")
+        t0 = np.datetime_as_string(ds["time"].values[0], unit="s") + "Z"
+        check(t0 == rows[0]["period_start_utc"], "xarray decodes the first hour as %s (%s)" % (rows[0]["period_start_utc"], t0))
+        check(ds.attrs.get("featureType") == "timeSeries", "featureType timeSeries")
+
+
 def bad_case(tmp, case_edit=None, met_lines=None):
     with open(DEMO_CASE) as f:
         text = f.read()
@@ -105,9 +133,11 @@ def bad_case(tmp, case_edit=None, met_lines=None):
         f.write("\n".join(lines) + "\n")
 
 
-def expect_error(name, message, case_edit=None, met_lines=None, args=None):
+def expect_error(name, message, case_edit=None, met_lines=None, args=None, copy=()):
     with tempfile.TemporaryDirectory() as d:
         bad_case(d, case_edit, met_lines)
+        for f in copy:
+            shutil.copy(os.path.join(SOURCE, "met-demo", f), d)
         p = run(args or ["run", "case.toml", "-o", "out"], d)
         check(p.returncode == 2, name + ": exit code 2 (got %d)" % p.returncode)
         got = p.stderr.strip()
@@ -178,6 +208,14 @@ def test_bad_inputs():
                  'cindervale-met.csv:6: column "wind_from [deg]": direction 400 outside 0-360 '
                  "degrees; expected a direction from 0 to 360 degrees clockwise from north",
                  met_lines=lambda L: replace_field(L, 5, 3, "400"))
+    expect_error("NetCDF variable",
+                 'cindervale-met-point.nc: variable "blh" (mapped to the mixing height) not found '
+                 "among the variables present: time, time_bnds, lat, lon, station_name, "
+                 "mixing_height, wind_speed, wind_from_direction, air_temperature; expected one of "
+                 "the variables present",
+                 case_edit=('file = "cindervale-met.csv"',
+                            'file = "cindervale-met-point.nc"\nvariables = { mixing_height = "blh" }'),
+                 copy=["cindervale-met-point.nc"])
     expect_error("missing case file", "nothere.toml: the file cannot be opened; expected a readable file",
                  args=["run", "nothere.toml", "-o", "out"])
 
@@ -196,6 +234,7 @@ def test_usage():
 
 if __name__ == "__main__":
     test_demo()
+    test_netcdf_demo()
     test_bad_inputs()
     test_usage()
     print("%d failed" % len(failures))
