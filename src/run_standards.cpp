@@ -63,6 +63,10 @@ std::string standards_summary(const StandardsReport& report) {
                  " (level " + format_number(l.level, 4) + " " + l.unit + ")";
       }
     }
+    if (exceeded + within + incomplete == 0) {
+      o << "  " << rs.id << ": alert rules only\n";
+      continue;
+    }
     o << "  " << rs.id << ": " << exceeded << " exceeded, " << within << " within, " << incomplete
       << " incomplete for the year; values above a level: " << (above.empty() ? "none" : above) << "\n";
   }

@@ -73,6 +73,22 @@ def test_demo():
                         for r in daily if r["complete"] == "true")
         check(len(daily) == 7 and worst_day < 1e-5,
               "daily PM2.5 means recomputed from hourly.csv (%d days, worst %.1e)" % (len(daily), worst_day))
+        # The invented advisory (met-demo/cindervale-advisories.toml): three or more consecutive
+        # hours above 45 ug/m3; recomputed from hourly.csv.
+        runs, start = [], None
+        values = [float(r["PM25_hour_mean [ug m-3]"]) for r in rows] + [0.0]
+        for i, v in enumerate(values):
+            if v > 45.0 and start is None:
+                start = i
+            if v <= 45.0 and start is not None:
+                if i - start >= 3:
+                    runs.append((rows[start]["period_start_utc"], i - start))
+                start = None
+        with open(os.path.join(d, "out", "episodes.csv")) as f:
+            episodes = [(r["start_utc"], int(r["values_above"])) for r in csv.DictReader(f)
+                        if r["rule_id"] == "PM2.5-advisory"]
+        check(len(runs) > 0 and episodes == runs,
+              "advisory episodes %s recomputed from hourly.csv %s" % (episodes, runs))
         with open(os.path.join(d, "out", "report.md")) as f:
             md = f.read()
         check(md.count("Screening estimate from a single well-mixed box model") >= 1, "report.md carries the caution")
