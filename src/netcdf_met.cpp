@@ -13,6 +13,7 @@
 
 #include "lidbox/cf_time.hpp"
 #include "lidbox/error.hpp"
+#include "lidbox/text.hpp"
 #include "lidbox/units.hpp"
 
 namespace lidbox {
@@ -34,24 +35,6 @@ std::string join(const std::vector<std::string>& v, const std::string& sep = ", 
   std::string r;
   for (std::size_t i = 0; i < v.size(); ++i) r += (i ? sep : "") + v[i];
   return r;
-}
-
-// Optimal-string-alignment distance: Levenshtein plus adjacent transpositions ("bhl" ~ "blh").
-std::size_t edit_distance(const std::string& a, const std::string& b) {
-  const std::size_t n = a.size(), m = b.size();
-  std::vector<std::vector<std::size_t>> d(n + 1, std::vector<std::size_t>(m + 1));
-  for (std::size_t i = 0; i <= n; ++i) d[i][0] = i;
-  for (std::size_t j = 0; j <= m; ++j) d[0][j] = j;
-  for (std::size_t i = 1; i <= n; ++i) {
-    for (std::size_t j = 1; j <= m; ++j) {
-      const std::size_t cost = a[i - 1] == b[j - 1] ? 0 : 1;
-      d[i][j] = std::min({d[i - 1][j] + 1, d[i][j - 1] + 1, d[i - 1][j - 1] + cost});
-      if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1]) {
-        d[i][j] = std::min(d[i][j], d[i - 2][j - 2] + 1);
-      }
-    }
-  }
-  return d[n][m];
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -1,6 +1,7 @@
 #include "lidbox/text.hpp"
 
 #include <algorithm>
+#include <cctype>
 #include <cerrno>
 #include <cmath>
 #include <cstdio>
@@ -98,34 +99,48 @@ std::string format_number(double v, int digits) {
   return buf;
 }
 
-namespace {
 std::size_t edit_distance(std::string_view a, std::string_view b) {
-  std::vector<std::size_t> prev(b.size() + 1), cur(b.size() + 1);
-  for (std::size_t j = 0; j <= b.size(); ++j) prev[j] = j;
+  std::vector<std::vector<std::size_t>> d(a.size() + 1, std::vector<std::size_t>(b.size() + 1));
+  for (std::size_t i = 0; i <= a.size(); ++i) d[i][0] = i;
+  for (std::size_t j = 0; j <= b.size(); ++j) d[0][j] = j;
   for (std::size_t i = 1; i <= a.size(); ++i) {
-    cur[0] = i;
     for (std::size_t j = 1; j <= b.size(); ++j) {
-      const std::size_t sub = prev[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1);
-      cur[j] = std::min({prev[j] + 1, cur[j - 1] + 1, sub});
+      const std::size_t cost = a[i - 1] == b[j - 1] ? 0 : 1;
+      d[i][j] = std::min({d[i - 1][j] + 1, d[i][j - 1] + 1, d[i - 1][j - 1] + cost});
+      if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1]) {
+        d[i][j] = std::min(d[i][j], d[i - 2][j - 2] + 1);
+      }
     }
-    std::swap(prev, cur);
   }
-  return prev[b.size()];
+  return d[a.size()][b.size()];
+}
+
+namespace {
+std::string lower(std::string_view s) {
+  std::string out(s);
+  for (char& c : out) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+  return out;
 }
 }  // namespace
 
 std::string closest_name(std::string_view word, const std::vector<std::string>& candidates) {
-  std::string best;
-  std::size_t best_d = std::string::npos;
+  const std::string w = lower(word);
+  const std::size_t limit = std::max<std::size_t>(1, w.size() / 3);
+  std::size_t best = limit + 1;
+  std::string pick;
   for (const auto& c : candidates) {
-    const std::size_t d = edit_distance(word, c);
-    if (d < best_d) {
-      best_d = d;
-      best = c;
+    const std::size_t d = edit_distance(w, lower(c));
+    if (d < best) {
+      best = d;
+      pick = c;
     }
   }
-  if (best.empty() || best_d * 3 > std::max<std::size_t>(word.size(), 3)) return {};
-  return best;
+  return pick;
+}
+
+std::string did_you_mean(std::string_view word, const std::vector<std::string>& choices) {
+  const std::string pick = closest_name(word, choices);
+  return pick.empty() ? std::string() : " (did you mean \"" + pick + "\"?)";
 }
 
 }  // namespace lidbox

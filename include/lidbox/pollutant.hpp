@@ -11,6 +11,8 @@
 #include <string_view>
 #include <vector>
 
+#include "lidbox/text.hpp"
+
 namespace lidbox {
 
 struct PollutantInfo {
@@ -24,8 +26,6 @@ const PollutantInfo* find_pollutant(std::string_view name);
 const PollutantInfo& pollutant_or_throw(std::string_view name, std::string_view where);
 std::vector<std::string> pollutant_names();
 
-// " (did you mean \"daily_mean\"?)" when one choice is within a small edit distance of `word`
-// (case-insensitive edit distance, transpositions counting one, <= max(1, size/3)); otherwise "".
-std::string did_you_mean(std::string_view word, const std::vector<std::string>& choices);
+// did_you_mean() for the hint after an unknown name lives in text.hpp.
 
 }  // namespace lidbox

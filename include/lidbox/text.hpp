@@ -19,7 +19,12 @@ bool parse_double(std::string_view text, double& value);
 std::string read_text_file(const std::string& path, const std::string& display_name);
 // `digits` significant digits, no trailing zeros; "" for NaN (a missing value in a table).
 std::string format_number(double v, int digits = 7);
-// The closest candidate by edit distance, or empty when none is close (distance > 1/3 length).
+// Optimal-string-alignment distance: Levenshtein plus adjacent transpositions, so "levle" is one
+// edit from "level" and "bhl" one from "blh".
+std::size_t edit_distance(std::string_view a, std::string_view b);
+// The closest candidate (case-insensitive), or empty when none is within max(1, size/3) edits.
 std::string closest_name(std::string_view word, const std::vector<std::string>& candidates);
+// " (did you mean \"x\"?)" for the closest_name, or "" when there is none.
+std::string did_you_mean(std::string_view word, const std::vector<std::string>& choices);
 
 }  // namespace lidbox
