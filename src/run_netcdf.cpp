@@ -294,6 +294,46 @@ CfTable daily_statistics_cf_table(const CaseSpec& c, const StandardsReport& repo
   return t;
 }
 
+std::vector<CfTable> running_means_cf_tables(const CaseSpec& c, const StandardsReport& report) {
+  // One table per window length, rows = windows (time = window start, bounds = the window).
+  std::vector<CfTable> tables;
+  std::vector<int> windows;
+  for (const auto& t : report.rolling) {
+    if (std::find(windows.begin(), windows.end(), t.means.window_h) == windows.end()) {
+      windows.push_back(t.means.window_h);
+    }
+  }
+  for (const int k : windows) {
+    CfTable t;
+    t.period_s = static_cast<UtcSeconds>(k) * kSecondsPerHour;
+    describe_case(t, c, std::to_string(k) + "-hour running means");
+    for (const auto& rt : report.rolling) {
+      if (rt.means.window_h != k) continue;
+      if (t.time_utc.empty()) {
+        for (std::size_t i = 0; i < rt.means.size(); ++i) t.time_utc.push_back(rt.means.window_start_utc(i));
+      }
+      const bool ratio = rt.unit == "ppm" || rt.unit == "ppb" || rt.unit == "ppt";
+      const std::string P = cf_variable_name(rt.pollutant);
+      CfVariable m = var(P + "_mean_" + std::to_string(k) + "h", pollutant_standard_name(rt.pollutant, ratio),
+                         rt.pollutant + " " + std::to_string(k) + "-hour running mean (divided by the hours present)",
+                         rt.unit == "ppm" ? "1e-6" : rt.unit == "ppb" ? "1e-9" : rt.unit == "ppt" ? "1e-12" : rt.unit,
+                         "time: mean (interval: 1 hour)");
+      m.comment = "window [time_bnds); missing where fewer than " + std::to_string(rt.means.min_valid_h) +
+                  " of its " + std::to_string(k) + " hours are present";
+      if (ratio) m.attributes["reporting_unit"] = rt.unit;
+      CfVariable v = var(P + "_valid_hours_" + std::to_string(k) + "h", "", rt.pollutant + " hours present in the window", "1", "");
+      for (std::size_t i = 0; i < rt.means.size(); ++i) {
+        m.values.push_back(rt.means.mean[i]);
+        v.values.push_back(rt.means.valid_h[i]);
+      }
+      t.vars.push_back(std::move(m));
+      t.vars.push_back(std::move(v));
+    }
+    tables.push_back(std::move(t));
+  }
+  return tables;
+}
+
 std::vector<OutputFile> render_run_netcdf_outputs(const CaseSpec& c, const RunResult& r,
                                                   const StandardsReport* standards,
                                                   CfFileFormat format) {
@@ -303,6 +343,12 @@ std::vector<OutputFile> render_run_netcdf_outputs(const CaseSpec& c, const RunRe
   if (standards && !standards->daily.empty()) {
     out.push_back(
         {"daily.nc", render_cf_timeseries(daily_statistics_cf_table(c, *standards), format)});
+  }
+  if (standards) {
+    for (const CfTable& t : running_means_cf_tables(c, *standards)) {
+      out.push_back({"rolling_" + std::to_string(t.period_s / kSecondsPerHour) + "h.nc",
+                     render_cf_timeseries(t, format)});
+    }
   }
   return out;
 }

@@ -16,6 +16,7 @@
 // budget.nc  rows are the run's hours; per pollutant P the budget lines as rates over the
 //            footprint in g h-1 (P_emitted, P_advected_in, ...), the layer masses at the end of
 //            the hour in g and the cumulative closure in g, as budget.csv.
+// rolling_<k>h.nc  the running means asked for in [standards] rolling.
 // daily.nc   the daily statistics of the run's standards report (LST days, daily_cf_table()):
 //            one variable per pollutant and statistic, P_daily_mean, P_daily_max_1h,
 //            P_daily_max_8h_17_windows, ..., with the valid counts and completeness flags.
@@ -40,8 +41,14 @@ CfTable budget_cf_table(const CaseSpec& c, const RunResult& r);
 // InternalError when the report has no daily rows.
 CfTable daily_statistics_cf_table(const CaseSpec& c, const StandardsReport& report);
 
-// {"hourly.nc", "budget.nc"} and, with a report that has daily rows, "daily.nc", rendered in
-// memory to join render_run_outputs() in one atomic set.
+// The running means the case asked for ([standards] rolling), one table per window length k:
+// rows are the windows (time = window start, time_bnds = the window), per pollutant P
+// P_mean_<k>h and P_valid_hours_<k>h.
+std::vector<CfTable> running_means_cf_tables(const CaseSpec& c, const StandardsReport& report);
+
+// {"hourly.nc", "budget.nc"}, with a report that has daily rows "daily.nc", and one
+// "rolling_<k>h.nc" per requested window, rendered in memory to join render_run_outputs() in one
+// atomic set.
 std::vector<OutputFile> render_run_netcdf_outputs(
     const CaseSpec& c, const RunResult& r, const StandardsReport* standards = nullptr,
     CfFileFormat format = CfFileFormat::netcdf4_classic);
