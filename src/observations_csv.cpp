@@ -8,6 +8,7 @@
 #include "civil_calendar.hpp"
 #include "lidbox/concentration_units.hpp"
 #include "lidbox/error.hpp"
+#include "lidbox/text.hpp"
 #include "lidbox/time.hpp"
 #include "lidbox/pollutant.hpp"
 
@@ -22,16 +23,11 @@ std::string_view trim_view(std::string_view s) {
   return s;
 }
 
-std::vector<std::string_view> split_commas(std::string_view line) {
-  std::vector<std::string_view> out;
-  std::size_t start = 0;
-  for (std::size_t i = 0; i <= line.size(); ++i) {
-    if (i == line.size() || line[i] == ',') {
-      out.push_back(trim_view(line.substr(start, i - start)));
-      start = i + 1;
-    }
-  }
-  return out;
+// The met reader's CSV splitter (RFC 4180 quotes), each cell trimmed.
+std::vector<std::string> split_cells(std::string_view line) {
+  std::vector<std::string> cells = split_csv_row(std::string(line));
+  for (auto& c : cells) c = std::string(trim_view(c));
+  return cells;
 }
 
 }  // namespace
@@ -71,7 +67,7 @@ Observations parse_observations_csv(std::string_view text, std::string_view path
     const std::string_view line = trim_view(raw);
     if (line.empty() || line.front() == '#') continue;
     const std::string where = path + ":" + std::to_string(line_no);
-    const auto cells = split_commas(line);
+    const auto cells = split_cells(line);
     if (!have_header) {
       if (cells.size() < 2 || !(cells[0] == "time" || cells[0] == "Time")) {
         throw InputError(where, "header \"" + std::string(line) + "\"",
