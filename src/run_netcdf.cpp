@@ -18,12 +18,13 @@ std::string part_name(const CaseSpec& c, std::size_t j) {
 }
 
 // CF writes mixing ratios as plain numbers (canonical unit "1"); UDUNITS has no ppm.
-std::string cf_unit(const ConcentrationUnit& u) {
-  if (u.canonical == "ppm") return "1e-6";
-  if (u.canonical == "ppb") return "1e-9";
-  if (u.canonical == "ppt") return "1e-12";
-  return u.canonical;
+std::string cf_unit(const std::string& canonical) {
+  if (canonical == "ppm") return "1e-6";
+  if (canonical == "ppb") return "1e-9";
+  if (canonical == "ppt") return "1e-12";
+  return canonical;
 }
+std::string cf_unit(const ConcentrationUnit& u) { return cf_unit(u.canonical); }
 
 std::string number(double v) {
   char buf[32];
@@ -263,10 +264,7 @@ CfTable daily_statistics_cf_table(const CaseSpec& c, const StandardsReport& repo
     const bool ratio = r0.unit == "ppm" || r0.unit == "ppb" || r0.unit == "ppt";
     s.standard_name = pollutant_standard_name(r0.pollutant, ratio);
     s.long_name = r0.pollutant + " " + stat + " (local standard time day)";
-    s.units = r0.unit == "ppm"   ? "1e-6"
-              : r0.unit == "ppb" ? "1e-9"
-              : r0.unit == "ppt" ? "1e-12"
-                                 : r0.unit;
+    s.units = cf_unit(r0.unit);
     if (stat == "daily_mean") {
       s.cell_methods = "time: mean (interval: 1 hour)";
     } else if (stat == "daily_max_1h") {
@@ -316,7 +314,7 @@ std::vector<CfTable> running_means_cf_tables(const CaseSpec& c, const StandardsR
       const std::string P = cf_variable_name(rt.pollutant);
       CfVariable m = var(P + "_mean_" + std::to_string(k) + "h", pollutant_standard_name(rt.pollutant, ratio),
                          rt.pollutant + " " + std::to_string(k) + "-hour running mean (divided by the hours present)",
-                         rt.unit == "ppm" ? "1e-6" : rt.unit == "ppb" ? "1e-9" : rt.unit == "ppt" ? "1e-12" : rt.unit,
+                         cf_unit(rt.unit),
                          "time: mean (interval: 1 hour)");
       m.comment = "window [time_bnds); missing where fewer than " + std::to_string(rt.means.min_valid_h) +
                   " of its " + std::to_string(k) + " hours are present";

@@ -16,12 +16,7 @@ namespace lidbox {
 
 namespace cc = civil_calendar;
 
-std::string format_offset(int offset_s) {
-  const int a = std::abs(offset_s);
-  char buf[16];
-  std::snprintf(buf, sizeof buf, "%c%02d:%02d", offset_s < 0 ? '-' : '+', a / 3600, a % 3600 / 60);
-  return buf;
-}
+std::string format_offset(int offset_s) { return format_utc_offset(offset_s); }
 
 StandardsReport compute_standards_report(const NamedSeries& series, ReportOptions options) {
   StandardsReport r;

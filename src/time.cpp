@@ -84,6 +84,8 @@ std::string format_offset(int offset_s) {
 
 }  // namespace
 
+std::string format_utc_offset(int offset_s) { return format_offset(offset_s); }
+
 std::string format_utc(UtcSeconds t) { return format_civil(civil_from_utc_seconds(t)) + "Z"; }
 
 std::string format_with_offset(UtcSeconds t, int offset_s) {

@@ -40,6 +40,8 @@ UtcSeconds utc_seconds_from_civil(const CivilTime& c);  // treats c as UTC
 
 // "2026-01-05T13:00:00Z"
 std::string format_utc(UtcSeconds t);
+// "+01:00", "-05:30" for an offset in seconds east of UTC
+std::string format_utc_offset(int offset_s);
 // "2026-01-05T14:00:00+01:00"
 std::string format_with_offset(UtcSeconds t, int offset_s);
 
