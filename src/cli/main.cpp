@@ -3,8 +3,8 @@
 #include <CLI/CLI.hpp>
 #include <iostream>
 
-#include "lidbox/caution.hpp"
-#include "lidbox/error.hpp"
+#include "lidbox/base/caution.hpp"
+#include "lidbox/base/error.hpp"
 #include "metdump_command.hpp"
 #include "observe_command.hpp"
 #include "run_command.hpp"

@@ -6,10 +6,10 @@
 #include <memory>
 #include <set>
 
-#include "lidbox/error.hpp"
-#include "lidbox/met.hpp"
-#include "lidbox/netcdf_met.hpp"
-#include "lidbox/netcdf_writer.hpp"
+#include "lidbox/base/error.hpp"
+#include "lidbox/met/met_series.hpp"
+#include "lidbox/met/netcdf_met.hpp"
+#include "lidbox/report/netcdf_writer.hpp"
 #include "netcdf_options.hpp"
 
 namespace lidbox::cli {

@@ -2,7 +2,7 @@
 
 #include <charconv>
 
-#include "lidbox/error.hpp"
+#include "lidbox/base/error.hpp"
 
 namespace lidbox::cli {
 namespace {

@@ -5,7 +5,7 @@
 #include <string>
 #include <vector>
 
-#include "lidbox/netcdf_met.hpp"
+#include "lidbox/met/netcdf_met.hpp"
 
 namespace lidbox::cli {
 

@@ -4,11 +4,11 @@
 #include <memory>
 #include <sstream>
 
-#include "lidbox/caution.hpp"
-#include "lidbox/error.hpp"
-#include "lidbox/observations_csv.hpp"
-#include "lidbox/rule_set.hpp"
-#include "lidbox/standards_report.hpp"
+#include "lidbox/base/caution.hpp"
+#include "lidbox/base/error.hpp"
+#include "lidbox/standards/observations_csv.hpp"
+#include "lidbox/standards/rule_set.hpp"
+#include "lidbox/standards/standards_report.hpp"
 
 namespace lidbox::cli {
 
@@ -106,7 +106,7 @@ void add_observe_command(CLI::App& app, int& exit_code) {
       ->capture_default_str();
   sub->add_option(
       "--rules-dir", args->rules_dir,
-      "folder of rule-set files (default: $LIDBOX_RULES_DIR, else the shipped src/rules)");
+      "folder of rule-set files (default: $LIDBOX_RULES_DIR, else the shipped src/data/rules)");
   sub->add_option("--lst-offset", args->lst_offset,
                   "local standard time as a fixed UTC offset, e.g. -05:00 (no daylight saving)")
       ->required();

@@ -4,12 +4,12 @@
 #include <iostream>
 #include <memory>
 
-#include "lidbox/atomic_file.hpp"
-#include "lidbox/case_file.hpp"
-#include "lidbox/run.hpp"
-#include "lidbox/run_report.hpp"
-#include "lidbox/run_netcdf.hpp"
-#include "lidbox/run_standards.hpp"
+#include "lidbox/base/atomic_file.hpp"
+#include "lidbox/engine/case_file.hpp"
+#include "lidbox/engine/run.hpp"
+#include "lidbox/report/run_report.hpp"
+#include "lidbox/report/run_netcdf.hpp"
+#include "lidbox/analysis/run_standards.hpp"
 #include "progress.hpp"
 
 namespace lidbox::cli {

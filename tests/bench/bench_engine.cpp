@@ -11,9 +11,9 @@
 #include <string>
 #include <vector>
 
-#include "lidbox/box_model.hpp"
-#include "lidbox/case_file.hpp"
-#include "lidbox/run.hpp"
+#include "lidbox/engine/box_model.hpp"
+#include "lidbox/engine/case_file.hpp"
+#include "lidbox/engine/run.hpp"
 
 using namespace lidbox;
 using Clock = std::chrono::steady_clock;

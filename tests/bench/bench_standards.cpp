@@ -7,8 +7,8 @@
 #include <cstdio>
 #include <random>
 
-#include "lidbox/rule_set.hpp"
-#include "lidbox/standards_report.hpp"
+#include "lidbox/standards/rule_set.hpp"
+#include "lidbox/standards/standards_report.hpp"
 
 using namespace lidbox;
 

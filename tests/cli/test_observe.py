@@ -88,7 +88,7 @@ with tempfile.TemporaryDirectory() as tmp:
 
     # Unknown rule-set id, bad offset, missing required option.
     rc, so, se = run(["observe", good, "--rules", "us-naqs", "--lst-offset", "+01:00", "--out", out2])
-    rules_dir = os.path.join(os.path.abspath(SOURCE), "src", "rules")
+    rules_dir = os.path.join(os.path.abspath(SOURCE), "src", "data", "rules")
     check(rc == 2 and se.strip() == "lidbox: error: rule set \"us-naqs\": not found in %s; expected "
           "one of eu-2008-50, eu-2024-2881, us-naaqs, who-2021 (did you mean \"us-naaqs\"?)"
           % rules_dir, "unknown id: %d %r" % (rc, se))

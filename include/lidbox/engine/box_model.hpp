@@ -1,0 +1,181 @@
+// The hourly box balance of a well-mixed urban airshed with a residual layer aloft.
+//
+// Notation (SI: g, m, s), after the physics note (shared design, sections 1-4):
+//   H   mixing height (the lid)              Hr  top of the residual layer (highest lid since the
+//   C   mixed-layer concentration [g m-3]        layer was last emptied); D = Hr - H its depth
+//   Cr  residual-layer concentration         Cb  background of the air arriving upwind
+//   Ca  free-troposphere concentration       q   emission flux [g m-2 s-1] = E / A
+//   f   flushing rate [1/s] (footprint.hpp)  k   first-order loss [1/s]; vd dry deposition [m/s]
+//
+// Mixed layer, per unit ground area (M = C H):
+//   dM/dt = q + f H Cb - f H C - k M - vd C + w+ Ce - w- C                 (physics note eq. 2)
+// with w+ = max(dH/dt, 0) entraining air of concentration Ce (residual-layer air first, then
+// free-troposphere air above Hr) and w- = max(-dH/dt, 0) leaving mixed-layer air behind in the
+// residual layer (detrainment), which changes the box's mass but not C. The residual layer loses
+// mass by first-order reaction and, optionally, by a wind aloft flushing it towards Ca.
+// The textbook steady state C = Cb + q L/(u H) is the special case k = vd = w = 0
+// (Seinfeld and Pandis, Atmospheric Chemistry and Physics, box-model section; from memory).
+//
+// Integration (operator splitting that conserves mass exactly):
+//   * lid moves are applied as instant mixing, C <- (C H1 + Ce (H2 - H1)) / H2 when rising, and
+//     a transfer of C (H1 - H2) to the residual layer when falling; an instant move is the exact
+//     solution of the lid sub-problem, so every gram is accounted for;
+//   * between lid moves the coefficients are frozen and dC/dt = a - lambda C is solved exactly:
+//       C(t+h) = C* + (C - C*) exp(-lambda h),  C* = a / lambda,
+//       int C dt = C* h + (C - C*) (1 - exp(-lambda h)) / lambda        (expm1 for small lambda h)
+//     which gives every budget line exactly.
+//   * hour-average forcing (held): one lid jump at the start of the hour, then an exact step - the
+//     result is exact for the held forcing, whatever the step;
+//   * instantaneous forcing (interpolated): Strang splitting per sub-step (lid to the midpoint
+//     height, exact step with midpoint coefficients, lid to the end height): second order in the
+//     sub-step, with sub-steps chosen so that lambda h and the relative lid change stay small.
+//
+// Linearity (physics note section 6): every pollutant is carried as separate linear parts -
+// part 0 the background (air advected in and air entrained from the free troposphere), part 1 the
+// initial state, part 2+s emission sector s - whose sum is the total concentration.
+//
+// The engine allocates nothing and does no I/O while stepping: state and results are plain
+// arrays sized once, so thousands of boxes can be stepped side by side.
+#pragma once
+
+#include <cstddef>
+#include <vector>
+
+#include "lidbox/engine/footprint.hpp"
+#include "lidbox/met/met_series.hpp"
+
+namespace lidbox {
+
+struct PollutantProcesses {
+  double loss_rate_per_s = 0.0;           // k in the mixed layer
+  double deposition_velocity_m_s = 0.0;   // vd at the ground
+  double residual_loss_rate_per_s = 0.0;  // k in the residual layer
+};
+
+struct EngineOptions {
+  MetReading reading = MetReading::hour_average;
+  bool residual_layer = true;
+  // The wind aloft that flushes the residual layer, as a multiple of the surface wind vector;
+  // 0 keeps the residual layer in place (flushed only when the lid takes it back).
+  double residual_wind_factor = 0.0;
+  // Floors (physics note section 5): applied, counted and flagged, never silent.
+  // 0.5 m/s is common practice (no source); 50 m is common practice (no source).
+  double min_wind_m_s = 0.5;
+  double min_mixing_height_m = 50.0;
+  // Sub-step control for interpolated forcing.
+  double max_lambda_dt = 0.1;            // lambda * h per sub-step
+  double max_relative_lid_change = 0.02;  // |dH| / H per sub-step
+  int max_substeps_per_hour = 3600;
+  int fixed_substeps_per_hour = 0;  // > 0 overrides the adaptive choice (convergence studies)
+};
+
+// Forcing of a run of n hours, struct of arrays, SI units. Hour i covers
+// [start + i h, start + (i+1) h).
+struct Forcing {
+  std::size_t n_hours = 0;
+  std::size_t n_pollutants = 0;
+  std::size_t n_sectors = 0;
+  // Met. Instantaneous reading: n_hours + 1 values at the hour boundaries (node i = start of
+  // hour i). Hour-average reading: n_hours values, held through their hour.
+  std::vector<double> mixing_height_m;
+  std::vector<double> wind_u_m_s;
+  std::vector<double> wind_v_m_s;
+  // [p * n_hours + i]: background of the inflowing air, and free-troposphere air, per hour [g m-3].
+  std::vector<double> background_g_m3;
+  std::vector<double> free_troposphere_g_m3;
+  // [s * n_pollutants + p]: long-term mean emission rate of sector s over the footprint [g/s].
+  std::vector<double> emission_g_s;
+  // [(s * n_hours + i) * 2 + half]: clock factor of sector s in hour i; half 1 applies from
+  // clock_split_s seconds into the hour (zones whose offset is not a whole hour change their local
+  // hour mid-way through a UTC hour); with clock_split_s == 0 only half 0 is used.
+  std::vector<double> clock_factor;
+  int clock_split_s = 0;
+
+  [[nodiscard]] std::size_t met_values() const { return mixing_height_m.size(); }
+};
+
+struct BoxState {
+  double mixing_height_m = 0.0;
+  double residual_top_m = 0.0;  // >= mixing_height_m
+  std::vector<double> c_g_m3;   // [p * parts + j], mixed layer
+  std::vector<double> cr_g_m3;  // [p * parts + j], residual layer
+};
+
+// Budget lines of one pollutant over an interval [g m-2 of footprint]; the signs are in the
+// names (all values >= 0).
+struct BudgetTerms {
+  double emitted = 0.0;
+  double advected_in = 0.0;
+  double advected_out = 0.0;
+  double reacted = 0.0;
+  double deposited = 0.0;
+  double entrained_from_residual = 0.0;
+  double entrained_from_free_troposphere = 0.0;
+  double detrained = 0.0;  // mixed layer -> residual layer (or out of the system without one)
+  double residual_reacted = 0.0;
+  double residual_advected_in = 0.0;
+  double residual_advected_out = 0.0;
+
+  BudgetTerms& operator+=(const BudgetTerms& o);
+  // Net change of the mixed layer's mass implied by the lines.
+  [[nodiscard]] double mixed_layer_change() const;
+  // Net change of the residual layer's mass implied by the lines (with a residual layer).
+  [[nodiscard]] double residual_layer_change() const;
+  // Sum of the absolute lines: the scale against which closure is judged.
+  [[nodiscard]] double magnitude() const;
+};
+
+// What one hour produced. Sized once by BoxEngine::make_result and reused.
+struct HourResult {
+  std::vector<double> mean_c_g_m3;  // [p * parts + j]: hour mean, int C dt / 3600
+  std::vector<BudgetTerms> budget;  // [p]
+  double mixing_height_mean_m = 0.0;
+  double wind_speed_mean_m_s = 0.0;  // speed actually used (after the calm floor)
+  double wind_u_mean_m_s = 0.0;
+  double wind_v_mean_m_s = 0.0;
+  double flushing_rate_mean_per_s = 0.0;
+  double ventilation_mean_m2_s = 0.0;  // hour mean of u H
+  bool calm_floor = false;
+  bool lid_floor = false;
+  int substeps = 0;
+};
+
+class BoxEngine {
+ public:
+  BoxEngine(const Footprint& footprint, std::vector<PollutantProcesses> pollutants,
+            std::size_t n_sectors, const EngineOptions& options);
+
+  [[nodiscard]] std::size_t pollutants() const { return processes_.size(); }
+  [[nodiscard]] std::size_t parts() const { return n_sectors_ + 2; }
+  [[nodiscard]] const EngineOptions& options() const { return options_; }
+  [[nodiscard]] const Footprint& footprint() const { return footprint_; }
+
+  // A state of the right size with all concentrations zero and the lid at `mixing_height_m`
+  // (floored), with no residual layer.
+  [[nodiscard]] BoxState make_state(double mixing_height_m) const;
+  [[nodiscard]] HourResult make_result() const;
+
+  // Mass per unit area in the mixed and residual layers [g m-2], pollutant p, all parts.
+  [[nodiscard]] double mixed_mass(const BoxState& s, std::size_t p) const;
+  [[nodiscard]] double residual_mass(const BoxState& s, std::size_t p) const;
+
+  // Advances the state through hour `hour` of the forcing. No allocation, no I/O.
+  void step_hour(BoxState& s, const Forcing& forcing, std::size_t hour, HourResult& out) const;
+
+ private:
+  void move_lid(BoxState& s, double new_height_m, const Forcing& F, std::size_t hour,
+                HourResult& out) const;
+  void exact_step(BoxState& s, double dt_s, double flushing_per_s, double flushing_aloft_per_s,
+                  const Forcing& F, std::size_t hour, int half, HourResult& out) const;
+  double floored_height(double h, HourResult& out) const;
+  // Flushing rate with the calm floor; returns the speed used.
+  double flushing(double u, double v, double& f, HourResult& out) const;
+
+  Footprint footprint_;
+  FlushingGeometry geometry_;
+  std::vector<PollutantProcesses> processes_;
+  std::size_t n_sectors_;
+  EngineOptions options_;
+};
+
+}  // namespace lidbox

@@ -1,0 +1,103 @@
+// The case file (TOML, https://toml.io/en/v1.0.0): the airshed, its time zone, the met file and
+// how to read it, the pollutants, the emission sectors and their clocks, floors, sub-step control
+// and the output directory. Every dimensional value is a quantity string with its unit
+// ("16 km", "0.5 m/s", "9 t/h", "3 day"), converted with UDUNITS-2.
+//
+// Unknown keys are errors with a "did you mean" hint; every missing required value is named;
+// every message starts with "<file>:<line>: [<table>] <key>". README.md documents each key.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "lidbox/engine/box_model.hpp"
+#include "lidbox/base/concentration_units.hpp"
+#include "lidbox/engine/emissions.hpp"
+#include "lidbox/engine/footprint.hpp"
+#include "lidbox/met/met_series.hpp"
+#include "lidbox/met/netcdf_met.hpp"
+#include "lidbox/base/time.hpp"
+
+namespace lidbox {
+
+struct WindSectorValue {
+  double from_deg = 0.0;  // clockwise from north, start of the sector (inclusive)
+  double to_deg = 0.0;    // end (exclusive); may wrap through north
+  double value_g_m3 = 0.0;
+};
+
+struct BackgroundSpec {
+  enum class Kind { constant, by_wind_from, column };
+  Kind kind = Kind::constant;
+  double value_g_m3 = 0.0;
+  std::vector<WindSectorValue> sectors;
+  std::string column;  // name of a met column (its header unit converts to the pollutant's)
+
+  // Value for air arriving from `from_deg` (by_wind_from only).
+  [[nodiscard]] double for_direction(double from_deg) const;
+};
+
+struct PollutantSpec {
+  std::string name;
+  ConcentrationUnit unit;
+  double molar_mass_g_mol = 0.0;  // 0 for aerosols
+  ReferenceConditions reference;
+  std::string reference_label;  // "us", "eu" or "custom"
+  PollutantProcesses processes;
+  BackgroundSpec background;
+  double free_troposphere_g_m3 = 0.0;
+  std::optional<double> initial_g_m3;           // only without spin-up
+  std::optional<double> initial_residual_g_m3;  // only without spin-up
+};
+
+enum class SpinUp { none, repeat_first_day };
+
+enum class MetFormat { csv, netcdf };
+
+struct MetSpec {
+  std::string path;          // resolved against the case file's folder
+  std::string display_name;  // as written in the case file
+  MetFormat format = MetFormat::csv;  // default from the extension: .nc/.nc4/.cdf -> netcdf
+  MetReading reading = MetReading::hour_average;
+  HourLabel hour_label = HourLabel::period_start;
+  int max_gap_hours = 3;
+  NetcdfMetOptions netcdf;  // station, point, footprint, member, variables (NetCDF only)
+};
+
+// Which rule sets the run's hour means are judged against (rule_set.hpp, standards_report.hpp).
+struct StandardsSpec {
+  std::vector<std::string> rule_sets;  // ids ("us-naaqs") or TOML paths resolved against the case
+  std::string rules_dir;               // empty: $LIDBOX_RULES_DIR, else the shipped src/data/rules
+  std::string aqi_table = "2024";      // US AQI breakpoints: "2024" or "2018"
+  bool aqi = true;
+  bool aqhi = true;
+  std::optional<UtcSeconds> issue_time_utc;    // forecast issue time, for episode lead times
+  std::vector<std::pair<int, int>> rolling_h;  // extra running-mean tables: (window, min valid)
+};
+
+struct CaseSpec {
+  std::string file;  // the case file as named by the user
+  std::string name;
+  std::string title;
+  TimeZone zone;
+  Footprint footprint;
+  MetSpec met;
+  EngineOptions engine;
+  SpinUp spin_up = SpinUp::repeat_first_day;
+  double spin_up_tolerance = 1e-3;  // relative change of the day's hour means
+  int spin_up_max_days = 60;
+  std::vector<PollutantSpec> pollutants;
+  std::vector<EmissionSector> sectors;  // rates per pollutant in the order of `pollutants`
+  std::optional<StandardsSpec> standards;  // absent: no standards tables
+  std::string output_directory;         // default outputs/<name>
+  bool netcdf_output = false;           // also write hourly.nc, budget.nc, daily.nc
+  bool invented = false;                // the case says its scenario is invented
+};
+
+// Reads and checks a case file. Relative paths inside it are resolved against its folder.
+CaseSpec load_case(const std::string& path);
+// From text (tests); `file` is used in messages and `base_dir` resolves relative paths.
+CaseSpec parse_case(const std::string& text, const std::string& file, const std::string& base_dir);
+
+}  // namespace lidbox

@@ -1,0 +1,307 @@
+#include "lidbox/engine/run.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include "lidbox/met/csv_met.hpp"
+#include "lidbox/met/netcdf_met.hpp"
+#include "lidbox/base/error.hpp"
+#include "lidbox/base/text.hpp"
+
+namespace lidbox {
+
+double RunResult::total(std::size_t hour, std::size_t p) const {
+  double s = 0.0;
+  for (std::size_t j = 0; j < n_parts; ++j) s += mean(hour, p, j);
+  return s;
+}
+
+double RunResult::closure_g_m2(std::size_t hour, std::size_t p, bool residual_layer) const {
+  double lines = 0.0;
+  for (std::size_t i = 0; i <= hour; ++i) {
+    const BudgetTerms& b = budget[i * n_pollutants + p];
+    lines += residual_layer ? b.mixed_layer_change() + b.residual_layer_change() : b.mixed_layer_change();
+  }
+  double storage = mixed_mass_g_m2[hour * n_pollutants + p] - initial_mixed_mass_g_m2[p];
+  if (residual_layer) {
+    storage += residual_mass_g_m2[hour * n_pollutants + p] - initial_residual_mass_g_m2[p];
+  }
+  return storage - lines;
+}
+
+double RunResult::relative_closure(std::size_t p, bool residual_layer) const {
+  if (hours.empty()) return 0.0;
+  double scale = 0.0;
+  for (std::size_t i = 0; i < hours.size(); ++i) scale += budget[i * n_pollutants + p].magnitude();
+  const double r = closure_g_m2(hours.size() - 1, p, residual_layer);
+  return scale > 0.0 ? std::fabs(r) / scale : 0.0;
+}
+
+MetSeries read_case_met(const CaseSpec& c) {
+  if (c.met.format == MetFormat::netcdf) {
+    NetcdfMetOptions o = c.met.netcdf;
+    // Background columns named by the case are read as extra variables of the same name (or
+    // standard_name).
+    for (const auto& p : c.pollutants) {
+      if (p.background.kind == BackgroundSpec::Kind::column) o.extra[p.background.column] = p.background.column;
+    }
+    MetSeries met = read_met_netcdf(c.met.path, o);
+    fill_gaps(met, c.met.max_gap_hours);
+    validate_met(met);
+    return met;
+  }
+  CsvMetOptions o;
+  o.zone_for_naive_times = &c.zone;
+  o.max_gap_hours = c.met.max_gap_hours;
+  MetSeries met = read_met_csv(c.met.path, o, c.met.display_name);
+  validate_met(met);
+  return met;
+}
+
+namespace {
+
+// Value of a met column for one hour, converted to g/m3 for pollutant p.
+struct ColumnLookup {
+  const MetColumn* column = nullptr;
+  double to_g_m3 = 1.0;
+};
+
+}  // namespace
+
+Forcing build_forcing(const CaseSpec& c, const MetSeries& met, std::vector<HourRecord>& hours) {
+  const bool inst = c.met.reading == MetReading::instantaneous;
+  const std::size_t n_stamps = met.size();
+  if (n_stamps < 2) throw InputError(met.source, "fewer than two hours of met", "at least two hours");
+  const std::size_t n = inst ? n_stamps - 1 : n_stamps;
+  const std::size_t P = c.pollutants.size();
+  const std::size_t S = c.sectors.size();
+  Forcing F;
+  F.n_hours = n;
+  F.n_pollutants = P;
+  F.n_sectors = S;
+  F.mixing_height_m = met.mixing_height_m;
+  F.wind_u_m_s = met.wind_u_m_s;
+  F.wind_v_m_s = met.wind_v_m_s;
+  // Hour i starts at stamp i, except for hour averages stamped at the end of their hour.
+  const UtcSeconds first_start =
+      met.first_stamp_utc - (!inst && c.met.hour_label == HourLabel::period_end ? kSecondsPerHour : 0);
+
+  hours.assign(n, HourRecord{});
+  for (std::size_t i = 0; i < n; ++i) {
+    HourRecord& h = hours[i];
+    h.start_utc = first_start + static_cast<UtcSeconds>(i) * kSecondsPerHour;
+    h.civil_offset_s = c.zone.civil_offset_s(h.start_utc);
+    h.filled = inst ? (met.filled[i] || met.filled[i + 1]) : met.filled[i] != 0;
+  }
+
+  // Background and free troposphere per pollutant per hour.
+  F.background_g_m3.assign(P * n, 0.0);
+  F.free_troposphere_g_m3.assign(P * n, 0.0);
+  for (std::size_t p = 0; p < P; ++p) {
+    const PollutantSpec& ps = c.pollutants[p];
+    ColumnLookup col;
+    if (ps.background.kind == BackgroundSpec::Kind::column) {
+      col.column = met.find_extra(ps.background.column);
+      if (!col.column) {
+        std::vector<std::string> names;
+        for (const auto& e : met.extra) names.push_back(e.name);
+        std::string list;
+        for (const auto& nm : names) list += (list.empty() ? "" : ", ") + nm;
+        throw InputError(met.source, "no column \"" + ps.background.column + "\" for the background of " +
+                                         ps.name + " (other columns: " + (list.empty() ? "none" : list) + ")",
+                         "a column \"" + ps.background.column + " [unit]\"");
+      }
+      col.to_g_m3 = parse_concentration_unit(col.column->unit, ps.molar_mass_g_mol, ps.reference,
+                                             met.source + ": column \"" + col.column->name + " [" +
+                                                 col.column->unit + "]\"")
+                        .to_g_m3;
+    }
+    for (std::size_t i = 0; i < n; ++i) {
+      double cb = ps.background.value_g_m3;
+      if (ps.background.kind == BackgroundSpec::Kind::column) {
+        const auto& v = col.column->values;
+        const double raw = inst ? 0.5 * (v[i] + v[i + 1]) : v[i];
+        if (raw < 0.0) {
+          throw InputError(met.source + ":" + std::to_string(met.source_line[i]),
+                           "negative background " + format_number(raw), "a concentration >= 0");
+        }
+        cb = raw * col.to_g_m3;
+      } else if (ps.background.kind == BackgroundSpec::Kind::by_wind_from) {
+        const double u = inst ? 0.5 * (met.wind_u_m_s[i] + met.wind_u_m_s[i + 1]) : met.wind_u_m_s[i];
+        const double v = inst ? 0.5 * (met.wind_v_m_s[i] + met.wind_v_m_s[i + 1]) : met.wind_v_m_s[i];
+        cb = ps.background.for_direction(wind_from_deg(u, v));
+      }
+      F.background_g_m3[p * n + i] = cb;
+      F.free_troposphere_g_m3[p * n + i] = ps.free_troposphere_g_m3;
+    }
+  }
+
+  // Emissions and clocks. A zone whose offset is not a whole number of hours changes its local
+  // hour part-way through each UTC hour.
+  F.emission_g_s.assign(S * P, 0.0);
+  for (std::size_t s = 0; s < S; ++s) {
+    for (std::size_t p = 0; p < P; ++p) F.emission_g_s[s * P + p] = c.sectors[s].rate_g_s[p];
+  }
+  const int minutes_part = ((c.zone.standard_offset_s() % 3600) + 3600) % 3600;
+  F.clock_split_s = minutes_part == 0 ? 0 : 3600 - minutes_part;
+  F.clock_factor.assign(S * n * 2, 0.0);
+  for (std::size_t i = 0; i < n; ++i) {
+    const CivilTime a = c.zone.civil(hours[i].start_utc);
+    const CivilTime b = c.zone.civil(hours[i].start_utc + F.clock_split_s);
+    for (std::size_t s = 0; s < S; ++s) {
+      F.clock_factor[(s * n + i) * 2] = c.sectors[s].clock.factor(a);
+      F.clock_factor[(s * n + i) * 2 + 1] = c.sectors[s].clock.factor(b);
+    }
+  }
+  return F;
+}
+
+namespace {
+
+// The first day repeated: 24 hours of forcing whose last instantaneous node wraps to the first.
+Forcing first_day(const Forcing& F, MetReading reading) {
+  const std::size_t d = 24;
+  Forcing D;
+  D.n_hours = d;
+  D.n_pollutants = F.n_pollutants;
+  D.n_sectors = F.n_sectors;
+  D.clock_split_s = F.clock_split_s;
+  const std::size_t nodes = reading == MetReading::instantaneous ? d + 1 : d;
+  for (std::size_t i = 0; i < nodes; ++i) {
+    const std::size_t k = i % d;
+    D.mixing_height_m.push_back(F.mixing_height_m[k]);
+    D.wind_u_m_s.push_back(F.wind_u_m_s[k]);
+    D.wind_v_m_s.push_back(F.wind_v_m_s[k]);
+  }
+  for (std::size_t p = 0; p < F.n_pollutants; ++p) {
+    for (std::size_t i = 0; i < d; ++i) {
+      D.background_g_m3.push_back(F.background_g_m3[p * F.n_hours + i]);
+      D.free_troposphere_g_m3.push_back(F.free_troposphere_g_m3[p * F.n_hours + i]);
+    }
+  }
+  D.emission_g_s = F.emission_g_s;
+  for (std::size_t s = 0; s < F.n_sectors; ++s) {
+    for (std::size_t i = 0; i < d; ++i) {
+      D.clock_factor.push_back(F.clock_factor[(s * F.n_hours + i) * 2]);
+      D.clock_factor.push_back(F.clock_factor[(s * F.n_hours + i) * 2 + 1]);
+    }
+  }
+  return D;
+}
+
+std::vector<PollutantProcesses> processes_of(const CaseSpec& c) {
+  std::vector<PollutantProcesses> out;
+  for (const auto& p : c.pollutants) out.push_back(p.processes);
+  return out;
+}
+
+}  // namespace
+
+RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& progress) {
+  RunResult R;
+  Forcing F = build_forcing(c, met, R.hours);
+  const std::size_t n = F.n_hours;
+  const std::size_t P = F.n_pollutants;
+  BoxEngine engine(c.footprint, processes_of(c), F.n_sectors, c.engine);
+  const std::size_t J = engine.parts();
+  R.n_pollutants = P;
+  R.n_parts = J;
+  R.clock_split_s = F.clock_split_s;
+  HourResult hr = engine.make_result();
+
+  BoxState state = engine.make_state(F.mixing_height_m[0]);
+  if (c.spin_up == SpinUp::repeat_first_day) {
+    if (n < 24) {
+      throw InputError(met.source, std::to_string(n) + " hours of met, too few to repeat a first day",
+                       "at least 24 hours, or spin_up = \"none\" in [model]");
+    }
+    const Forcing D = first_day(F, c.met.reading);
+    // Start from the background in both layers and let the repeated day forget it.
+    for (std::size_t p = 0; p < P; ++p) {
+      state.c_g_m3[p * J + 0] = D.background_g_m3[p * 24];
+      state.cr_g_m3[p * J + 0] = D.free_troposphere_g_m3[p * 24];
+    }
+    std::vector<double> previous(P * 24, -1.0), current(P * 24, 0.0);
+    R.spin_up_converged = false;
+    for (int day = 1; day <= c.spin_up_max_days; ++day) {
+      for (std::size_t i = 0; i < 24; ++i) {
+        engine.step_hour(state, D, i, hr);
+        for (std::size_t p = 0; p < P; ++p) {
+          double t = 0.0;
+          for (std::size_t j = 0; j < J; ++j) t += hr.mean_c_g_m3[p * J + j];
+          current[p * 24 + i] = t;
+        }
+      }
+      R.spin_up_days = day;
+      if (day > 1) {
+        // Largest change of an hour mean, relative to the day's peak of that pollutant.
+        double change = 0.0;
+        for (std::size_t p = 0; p < P; ++p) {
+          double peak = 0.0, diff = 0.0;
+          for (std::size_t i = 0; i < 24; ++i) {
+            peak = std::max(peak, std::fabs(previous[p * 24 + i]));
+            diff = std::max(diff, std::fabs(current[p * 24 + i] - previous[p * 24 + i]));
+          }
+          change = std::max(change, peak > 0.0 ? diff / peak : 0.0);
+        }
+        R.spin_up_last_change = change;
+        if (change < c.spin_up_tolerance) {
+          R.spin_up_converged = true;
+          break;
+        }
+      }
+      previous = current;
+      if (progress) progress(static_cast<double>(day) / c.spin_up_max_days, "spin-up");
+    }
+  } else {
+    for (std::size_t p = 0; p < P; ++p) {
+      const PollutantSpec& ps = c.pollutants[p];
+      state.c_g_m3[p * J + 1] = ps.initial_g_m3.value_or(F.background_g_m3[p * n]);
+      state.cr_g_m3[p * J + 1] = ps.initial_residual_g_m3.value_or(0.0);
+    }
+  }
+
+  R.mean_g_m3.assign(n * P * J, 0.0);
+  R.end_mixed_g_m3.assign(n * P, 0.0);
+  R.end_residual_g_m3.assign(n * P, 0.0);
+  R.budget.assign(n * P, BudgetTerms{});
+  R.mixed_mass_g_m2.assign(n * P, 0.0);
+  R.residual_mass_g_m2.assign(n * P, 0.0);
+  R.initial_mixed_mass_g_m2.assign(P, 0.0);
+  R.initial_residual_mass_g_m2.assign(P, 0.0);
+  for (std::size_t p = 0; p < P; ++p) {
+    R.initial_mixed_mass_g_m2[p] = engine.mixed_mass(state, p);
+    R.initial_residual_mass_g_m2[p] = engine.residual_mass(state, p);
+  }
+  const std::size_t report_every = std::max<std::size_t>(1, n / 100);
+  for (std::size_t i = 0; i < n; ++i) {
+    engine.step_hour(state, F, i, hr);
+    HourRecord& h = R.hours[i];
+    h.mixing_height_m = hr.mixing_height_mean_m;
+    h.wind_speed_m_s = hr.wind_speed_mean_m_s;
+    h.wind_from_deg = wind_from_deg(hr.wind_u_mean_m_s, hr.wind_v_mean_m_s);
+    h.ventilation_m2_s = hr.ventilation_mean_m2_s;
+    h.flushing_time_h = 1.0 / hr.flushing_rate_mean_per_s / 3600.0;
+    h.residual_top_m = state.residual_top_m;
+    h.calm_floor = hr.calm_floor;
+    h.lid_floor = hr.lid_floor;
+    h.substeps = hr.substeps;
+    std::copy(hr.mean_c_g_m3.begin(), hr.mean_c_g_m3.end(), R.mean_g_m3.begin() + static_cast<long>(i * P * J));
+    for (std::size_t p = 0; p < P; ++p) {
+      double cm = 0.0, cr = 0.0;
+      for (std::size_t j = 0; j < J; ++j) {
+        cm += state.c_g_m3[p * J + j];
+        cr += state.cr_g_m3[p * J + j];
+      }
+      R.end_mixed_g_m3[i * P + p] = cm;
+      R.end_residual_g_m3[i * P + p] = state.residual_top_m > state.mixing_height_m ? cr : 0.0;
+      R.budget[i * P + p] = hr.budget[p];
+      R.mixed_mass_g_m2[i * P + p] = engine.mixed_mass(state, p);
+      R.residual_mass_g_m2[i * P + p] = engine.residual_mass(state, p);
+    }
+    if (progress && (i + 1) % report_every == 0) progress(static_cast<double>(i + 1) / static_cast<double>(n), "run");
+  }
+  return R;
+}
+
+}  // namespace lidbox

@@ -1,0 +1,259 @@
+#include "lidbox/met/csv_met.hpp"
+
+#include <charconv>
+#include <cmath>
+#include <fstream>
+#include <sstream>
+
+#include "lidbox/base/error.hpp"
+#include "lidbox/base/text.hpp"
+#include "lidbox/base/units.hpp"
+
+namespace lidbox {
+
+void split_header(const std::string& header, std::string& name, std::string& unit) {
+  const std::string h = trim(header);
+  const auto open = h.find('[');
+  const auto close = h.rfind(']');
+  if (open == std::string::npos || close == std::string::npos || close < open) {
+    name = h;
+    unit.clear();
+    return;
+  }
+  name = trim(h.substr(0, open));
+  unit = trim(h.substr(open + 1, close - open - 1));
+}
+
+namespace {
+
+enum class Role { time, mixing_height, wind_speed, wind_from, u, v, temperature, pressure, extra };
+
+Role role_of(const std::string& name) {
+  if (name == "time") return Role::time;
+  if (name == "mixing_height") return Role::mixing_height;
+  if (name == "wind_speed") return Role::wind_speed;
+  if (name == "wind_from" || name == "wind_from_direction") return Role::wind_from;
+  if (name == "eastward_wind") return Role::u;
+  if (name == "northward_wind") return Role::v;
+  if (name == "air_temperature") return Role::temperature;
+  if (name == "surface_air_pressure") return Role::pressure;
+  return Role::extra;
+}
+
+struct Column {
+  Role role;
+  std::string header;
+  std::string name;
+  std::string unit;
+  UnitConversion to_si;
+};
+
+}  // namespace
+
+MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
+                        const std::string& display_name) {
+  const std::vector<std::string> lines = split_lines(text);
+  std::size_t first = 0;
+  while (first < lines.size() && trim(lines[first]).empty()) ++first;
+  if (first == lines.size()) {
+    throw InputError(display_name, "the file is empty",
+                     "a header row such as \"time,mixing_height [m],wind_speed [m/s],wind_from "
+                     "[deg]\" and hourly rows");
+  }
+  const std::vector<std::string> headers = split_csv_row(lines[first]);
+  const std::string header_where = display_name + ":" + std::to_string(first + 1);
+  std::vector<Column> cols;
+  int time_col = -1;
+  for (std::size_t c = 0; c < headers.size(); ++c) {
+    Column col;
+    col.header = trim(headers[c]);
+    split_header(col.header, col.name, col.unit);
+    col.role = role_of(col.name);
+    const std::string where = header_where + ": column \"" + col.header + "\"";
+    for (const auto& other : cols) {
+      if (other.name == col.name) {
+        throw InputError(where, "a second column named \"" + col.name + "\"",
+                         "each column name once");
+      }
+    }
+    switch (col.role) {
+      case Role::time:
+        time_col = static_cast<int>(c);
+        break;
+      case Role::mixing_height:
+        col.to_si = unit_conversion(col.unit, "m", "length", where);
+        break;
+      case Role::wind_speed:
+      case Role::u:
+      case Role::v:
+        col.to_si = unit_conversion(col.unit, "m/s", "speed", where);
+        break;
+      case Role::wind_from:
+        col.to_si = direction_unit_to_degrees(col.unit, where);
+        break;
+      case Role::temperature:
+        col.to_si = unit_conversion(col.unit, "K", "temperature", where);
+        break;
+      case Role::pressure:
+        col.to_si = unit_conversion(col.unit, "Pa", "pressure", where);
+        break;
+      case Role::extra:
+        if (col.name.empty()) throw InputError(where, "an empty column name", "a name");
+        break;
+    }
+    cols.push_back(col);
+  }
+  auto has = [&](Role r) {
+    for (const auto& c : cols) {
+      if (c.role == r) return true;
+    }
+    return false;
+  };
+  std::string found;
+  for (const auto& c : cols) found += (found.empty() ? "" : ", ") + c.header;
+  if (time_col < 0) {
+    throw InputError(header_where, "no \"time\" column (found: " + found + ")",
+                     "a column named time holding ISO 8601 times");
+  }
+  if (!has(Role::mixing_height)) {
+    throw InputError(header_where, "no mixing height column (found: " + found + ")",
+                     "a column \"mixing_height [unit]\"");
+  }
+  const bool polar = has(Role::wind_speed) || has(Role::wind_from);
+  const bool cartesian = has(Role::u) || has(Role::v);
+  if (polar && cartesian) {
+    throw InputError(header_where, "both speed/direction and u/v wind columns",
+                     "either wind_speed and wind_from, or eastward_wind and northward_wind");
+  }
+  if (polar ? !(has(Role::wind_speed) && has(Role::wind_from))
+            : !(has(Role::u) && has(Role::v))) {
+    throw InputError(header_where, "no complete wind (found: " + found + ")",
+                     "columns \"wind_speed [unit]\" and \"wind_from [deg]\", or "
+                     "\"eastward_wind [unit]\" and \"northward_wind [unit]\"");
+  }
+
+  MetSeries met;
+  met.source = display_name;
+  const bool has_t = has(Role::temperature);
+  const bool has_p = has(Role::pressure);
+  for (const auto& c : cols) {
+    if (c.role == Role::extra) met.extra.push_back({c.name, c.unit, {}});
+  }
+  const double nan = std::nan("");
+  UtcSeconds previous = 0;
+  bool any = false;
+  for (std::size_t li = first + 1; li < lines.size(); ++li) {
+    if (trim(lines[li]).empty()) continue;
+    const int line_no = static_cast<int>(li + 1);
+    const std::string where = display_name + ":" + std::to_string(line_no);
+    const std::vector<std::string> cells = split_csv_row(lines[li]);
+    if (cells.size() != cols.size()) {
+      throw InputError(where, std::to_string(cells.size()) + " fields",
+                       std::to_string(cols.size()) + " fields as in the header");
+    }
+    const UtcSeconds t = parse_iso8601(trim(cells[time_col]), options.zone_for_naive_times, where);
+    if (any) {
+      if (t == previous) {
+        throw InputError(where, "time " + format_utc(t) + " repeats the previous row",
+                         "strictly increasing hourly times");
+      }
+      if (t < previous) {
+        throw InputError(where, "time " + format_utc(t) + " is before the previous row's " +
+                                    format_utc(previous),
+                         "strictly increasing hourly times");
+      }
+      if ((t - previous) % kSecondsPerHour != 0) {
+        throw InputError(where, "time " + format_utc(t) + " is off the hourly grid of " +
+                                    format_utc(met.first_stamp_utc),
+                         "times a whole number of hours apart");
+      }
+      // Missing stamps become gaps for the fill rule.
+      for (UtcSeconds g = previous + kSecondsPerHour; g < t; g += kSecondsPerHour) {
+        met.mixing_height_m.push_back(nan);
+        met.wind_u_m_s.push_back(nan);
+        met.wind_v_m_s.push_back(nan);
+        if (has_t) met.air_temperature_K.push_back(nan);
+        if (has_p) met.surface_pressure_Pa.push_back(nan);
+        for (auto& e : met.extra) e.values.push_back(nan);
+        met.source_line.push_back(0);
+      }
+    } else {
+      met.first_stamp_utc = t;
+    }
+    previous = t;
+    any = true;
+    double h = nan, speed = nan, from = nan, u = nan, v = nan, temp = nan, pres = nan;
+    std::size_t extra_i = 0;
+    for (std::size_t c = 0; c < cols.size(); ++c) {
+      const Column& col = cols[c];
+      if (col.role == Role::time) continue;
+      const std::string cell = trim(cells[c]);
+      double value = nan;
+      if (!cell.empty()) {
+        if (!parse_double(cell, value)) {
+          throw InputError(where + ": column \"" + col.header + "\"",
+                           "\"" + cell + "\" is not a number",
+                           "a decimal number, or an empty cell for a missing value");
+        }
+        if (col.role != Role::extra) value = col.to_si(value);
+      }
+      const std::string cw = where + ": column \"" + col.header + "\"";
+      switch (col.role) {
+        case Role::mixing_height:
+          if (value < 0.0) throw InputError(cw, "negative mixing height " + cell, "a height >= 0");
+          h = value;
+          break;
+        case Role::wind_speed:
+          if (value < 0.0) throw InputError(cw, "negative wind speed " + cell, "a speed >= 0");
+          speed = value;
+          break;
+        case Role::wind_from:
+          if (value < 0.0 || value > 360.0) {
+            throw InputError(cw, "direction " + cell + " outside 0-360 degrees",
+                             "a direction from 0 to 360 degrees clockwise from north");
+          }
+          from = value;
+          break;
+        case Role::u:
+          u = value;
+          break;
+        case Role::v:
+          v = value;
+          break;
+        case Role::temperature:
+          if (value <= 0.0) throw InputError(cw, "temperature " + cell, "a temperature above 0 K");
+          temp = value;
+          break;
+        case Role::pressure:
+          if (value <= 0.0) throw InputError(cw, "pressure " + cell, "a pressure above 0 Pa");
+          pres = value;
+          break;
+        case Role::extra:
+          met.extra[extra_i++].values.push_back(value);
+          break;
+        case Role::time:
+          break;
+      }
+    }
+    if (polar && !std::isnan(speed) && !std::isnan(from)) wind_components(speed, from, u, v);
+    met.mixing_height_m.push_back(h);
+    met.wind_u_m_s.push_back(u);
+    met.wind_v_m_s.push_back(v);
+    if (has_t) met.air_temperature_K.push_back(temp);
+    if (has_p) met.surface_pressure_Pa.push_back(pres);
+    met.source_line.push_back(line_no);
+  }
+  if (met.size() < 2) {
+    throw InputError(display_name, std::to_string(met.size()) + " data rows",
+                     "at least two hourly rows");
+  }
+  fill_gaps(met, options.max_gap_hours);
+  return met;
+}
+
+MetSeries read_met_csv(const std::string& path, const CsvMetOptions& options,
+                       const std::string& display_name) {
+  return parse_met_csv(read_text_file(path, display_name), options, display_name);
+}
+
+}  // namespace lidbox

@@ -1,0 +1,306 @@
+#include "lidbox/report/run_report.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <sstream>
+
+#include "lidbox/base/caution.hpp"
+#include "lidbox/analysis/run_standards.hpp"
+
+namespace lidbox {
+
+namespace {
+
+std::string local_label(const HourRecord& h, UtcSeconds t) {
+  return format_with_offset(t, h.civil_offset_s);
+}
+
+std::string part_name(const CaseSpec& c, std::size_t j) {
+  if (j == 0) return "background";
+  if (j == 1) return "initial";
+  return c.sectors[j - 2].name;
+}
+
+std::string unit_of(const PollutantSpec& p) { return p.unit.canonical; }
+
+double in_unit(const PollutantSpec& p, double g_m3) { return g_m3 / p.unit.to_g_m3; }
+
+}  // namespace
+
+std::string render_hourly_csv(const CaseSpec& c, const RunResult& r) {
+  std::ostringstream o;
+  o << "period_start_utc,period_end_utc,period_start_local,period_end_local,mixing_height [m],"
+       "wind_speed [m/s],wind_from [deg],ventilation_coefficient [m2/s],flushing_time [h],"
+       "residual_layer_top [m],met_filled,calm_floor_applied,lid_floor_applied,substeps";
+  for (const auto& p : c.pollutants) {
+    const std::string u = " [" + unit_of(p) + "]";
+    o << ',' << p.name << "_hour_mean" << u << ',' << p.name << "_end_of_hour" << u << ','
+      << p.name << "_residual_end_of_hour" << u;
+    for (std::size_t j = 0; j < r.n_parts; ++j) o << ',' << p.name << "_part_" << part_name(c, j) << u;
+  }
+  o << '\n';
+  for (std::size_t i = 0; i < r.hours.size(); ++i) {
+    const HourRecord& h = r.hours[i];
+    const UtcSeconds end = h.start_utc + kSecondsPerHour;
+    o << format_utc(h.start_utc) << ',' << format_utc(end) << ',' << local_label(h, h.start_utc) << ','
+      << format_with_offset(end, c.zone.civil_offset_s(end)) << ',' << format_number(h.mixing_height_m) << ','
+      << format_number(h.wind_speed_m_s, 5) << ',' << format_number(h.wind_from_deg, 5) << ','
+      << format_number(h.ventilation_m2_s, 6) << ',' << format_number(h.flushing_time_h, 5) << ','
+      << format_number(h.residual_top_m) << ',' << (h.filled ? 1 : 0) << ',' << (h.calm_floor ? 1 : 0)
+      << ',' << (h.lid_floor ? 1 : 0) << ',' << h.substeps;
+    for (std::size_t p = 0; p < r.n_pollutants; ++p) {
+      const PollutantSpec& ps = c.pollutants[p];
+      o << ',' << format_number(in_unit(ps, r.total(i, p))) << ','
+        << format_number(in_unit(ps, r.end_mixed_g_m3[i * r.n_pollutants + p])) << ','
+        << format_number(in_unit(ps, r.end_residual_g_m3[i * r.n_pollutants + p]));
+      for (std::size_t j = 0; j < r.n_parts; ++j) o << ',' << format_number(in_unit(ps, r.mean(i, p, j)));
+    }
+    o << '\n';
+  }
+  return o.str();
+}
+
+std::string render_budget_csv(const CaseSpec& c, const RunResult& r) {
+  const bool rl = c.engine.residual_layer;
+  const double A = c.footprint.area_m2();
+  std::ostringstream o;
+  o << "period_start_utc,pollutant,emitted [g/h],advected_in [g/h],advected_out [g/h],reacted [g/h],"
+       "deposited [g/h],entrained_from_residual [g/h],entrained_from_free_troposphere [g/h],"
+       "detrained [g/h],residual_reacted [g/h],residual_advected_in [g/h],"
+       "residual_advected_out [g/h],mixed_layer_mass [g],residual_layer_mass [g],"
+       "cumulative_closure [g]\n";
+  for (std::size_t i = 0; i < r.hours.size(); ++i) {
+    for (std::size_t p = 0; p < r.n_pollutants; ++p) {
+      const BudgetTerms& b = r.budget[i * r.n_pollutants + p];
+      o << format_utc(r.hours[i].start_utc) << ',' << c.pollutants[p].name;
+      for (double v : {b.emitted, b.advected_in, b.advected_out, b.reacted, b.deposited,
+                       b.entrained_from_residual, b.entrained_from_free_troposphere, b.detrained,
+                       b.residual_reacted, b.residual_advected_in, b.residual_advected_out,
+                       r.mixed_mass_g_m2[i * r.n_pollutants + p],
+                       r.residual_mass_g_m2[i * r.n_pollutants + p]}) {
+        o << ',' << format_number(v * A, 10);
+      }
+      char buf[32];
+      std::snprintf(buf, sizeof buf, "%.3e", r.closure_g_m2(i, p, rl) * A);
+      o << ',' << buf << '\n';
+    }
+  }
+  return o.str();
+}
+
+std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunResult& r,
+                           const StandardsReport* standards) {
+  std::ostringstream o;
+  const std::size_t n = r.hours.size();
+  o << "lidbox " << LIDBOX_VERSION << " | case " << c.name;
+  if (c.title != c.name) o << ": " << c.title;
+  o << "\nCAUTION: " << kScreeningCaution << "\n\n";
+  const UtcSeconds t0 = r.hours.front().start_utc;
+  const UtcSeconds t1 = r.hours.back().start_utc + kSecondsPerHour;
+  o << "Period   " << format_utc(t0) << " to " << format_utc(t1) << " (" << n << " hours), time zone "
+    << c.zone.spec() << "\n";
+  std::size_t filled = 0, calm = 0, lid = 0;
+  for (const auto& h : r.hours) {
+    filled += h.filled;
+    calm += h.calm_floor;
+    lid += h.lid_floor;
+  }
+  o << "Met      " << met.source << ", read as "
+    << (c.met.reading == MetReading::instantaneous ? "instantaneous values (interpolated)"
+                                                   : std::string("hour averages stamped at the period ") +
+                                                         (c.met.hour_label == HourLabel::period_start ? "start" : "end") +
+                                                         " (held)")
+    << "\nFlags    " << filled << " h gap-filled (linear interpolation), " << calm
+    << " h under the calm floor (" << format_number(c.engine.min_wind_m_s, 3) << " m/s), " << lid
+    << " h under the lid floor (" << format_number(c.engine.min_mixing_height_m, 4) << " m)\n";
+  if (c.spin_up == SpinUp::repeat_first_day) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%.2g %%", 100.0 * r.spin_up_last_change);
+    o << "Spin-up  first day repeated " << r.spin_up_days << " times; last change " << buf
+      << (r.spin_up_converged ? " (converged)" : " (NOT converged: raise spin_up_max_days)") << "\n";
+  } else {
+    o << "Spin-up  none: started from the given initial values\n";
+  }
+  o << "\n";
+  // Peak hour per pollutant and the shares of the parts at that hour and over the run.
+  o << "pollutant  unit      run mean   peak hour mean  peak hour (local start)      shares at peak\n";
+  for (std::size_t p = 0; p < r.n_pollutants; ++p) {
+    const PollutantSpec& ps = c.pollutants[p];
+    std::size_t peak = 0;
+    double sum = 0.0;
+    for (std::size_t i = 0; i < n; ++i) {
+      sum += r.total(i, p);
+      if (r.total(i, p) > r.total(peak, p)) peak = i;
+    }
+    char line[256];
+    std::snprintf(line, sizeof line, "%-10s %-8s %10s %15s  %-28s ", ps.name.c_str(), unit_of(ps).c_str(),
+                  format_number(in_unit(ps, sum / static_cast<double>(n)), 4).c_str(),
+                  format_number(in_unit(ps, r.total(peak, p)), 4).c_str(),
+                  format_with_offset(r.hours[peak].start_utc, r.hours[peak].civil_offset_s).c_str());
+    o << line;
+    const double tot = r.total(peak, p);
+    bool first = true;
+    for (std::size_t j = 0; j < r.n_parts; ++j) {
+      const double share = tot > 0.0 ? 100.0 * r.mean(peak, p, j) / tot : 0.0;
+      if (j == 1 && share < 0.05) continue;  // the initial part is zero after a spin-up
+      char b[96];
+      std::snprintf(b, sizeof b, "%s%s %.0f%%", first ? "" : ", ", part_name(c, j).c_str(), share);
+      o << b;
+      first = false;
+    }
+    o << "\n";
+  }
+  o << "\nBudget closure (|storage change - sum of lines| / sum of |lines|, whole run):";
+  for (std::size_t p = 0; p < r.n_pollutants; ++p) {
+    char b[96];
+    std::snprintf(b, sizeof b, " %s %.1e", c.pollutants[p].name.c_str(),
+                  r.relative_closure(p, c.engine.residual_layer));
+    o << b;
+  }
+  o << "\n";
+  if (standards) o << "\n" << standards_summary(*standards);
+  return o.str();
+}
+
+std::string render_chart_svg(const CaseSpec& c, const RunResult& r) {
+  const std::size_t n = r.hours.size();
+  const int W = 1100, left = 80, right = 30, panel_h = 170, gap = 40, top = 64;
+  const int panels = 1 + static_cast<int>(r.n_pollutants);
+  const int H = top + panels * (panel_h + gap) + 40;
+  const double plot_w = W - left - right;
+  auto x_of = [&](double i) { return left + plot_w * i / static_cast<double>(n); };
+  std::ostringstream o;
+  o << "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"" << W << "\" height=\"" << H
+    << "\" font-family=\"sans-serif\" font-size=\"12\">\n<rect width=\"100%\" height=\"100%\" fill=\"white\"/>\n";
+  o << "<text x=\"" << left << "\" y=\"22\" font-size=\"15\" font-weight=\"bold\">" << c.name
+    << ": hour means (local time " << c.zone.spec() << ")</text>\n";
+  {
+    // The caution, wrapped to the chart's width.
+    std::string line, word;
+    std::istringstream words(kScreeningCaution);
+    double y = 38.0;
+    std::ostringstream lines;
+    while (words >> word) {
+      if (line.size() + word.size() > 150) {
+        lines << "<text x=\"" << left << "\" y=\"" << y << "\" font-size=\"11\" fill=\"#555\">" << line << "</text>\n";
+        line.clear();
+        y += 13.0;
+      }
+      line += (line.empty() ? "" : " ") + word;
+    }
+    lines << "<text x=\"" << left << "\" y=\"" << y << "\" font-size=\"11\" fill=\"#555\">" << line << "</text>\n";
+    o << lines.str();
+  }
+  // A palette of our own: muted, distinguishable, printable.
+  static const char* kColours[] = {"#9aa5b1", "#d9d2c5", "#c8553d", "#2d7dd2", "#f2a541",
+                                   "#588b8b", "#8e6c8a", "#3d5a80"};
+  auto axis = [&](int y0, double vmax, const std::string& label) {
+    o << "<rect x=\"" << left << "\" y=\"" << y0 << "\" width=\"" << plot_w << "\" height=\"" << panel_h
+      << "\" fill=\"none\" stroke=\"#333\"/>\n";
+    for (int k = 0; k <= 4; ++k) {
+      const double v = vmax * k / 4.0;
+      const double y = y0 + panel_h - panel_h * k / 4.0;
+      o << "<line x1=\"" << left - 4 << "\" x2=\"" << left + plot_w << "\" y1=\"" << y << "\" y2=\"" << y
+        << "\" stroke=\"#ddd\"/><text x=\"" << left - 6 << "\" y=\"" << y + 4 << "\" text-anchor=\"end\">"
+        << format_number(v, 6) << "</text>\n";
+    }
+    o << "<text x=\"16\" y=\"" << y0 + panel_h / 2 << "\" transform=\"rotate(-90 16 " << y0 + panel_h / 2
+      << ")\" text-anchor=\"middle\">" << label << "</text>\n";
+    // Day ticks at local midnight.
+    for (std::size_t i = 0; i < n; ++i) {
+      const CivilTime lt = civil_from_utc_seconds(r.hours[i].start_utc + r.hours[i].civil_offset_s);
+      if (lt.hour != 0) continue;
+      const double x = x_of(static_cast<double>(i));
+      char d[16];
+      std::snprintf(d, sizeof d, "%02d-%02d", lt.month, lt.day);
+      o << "<line x1=\"" << x << "\" x2=\"" << x << "\" y1=\"" << y0 << "\" y2=\"" << y0 + panel_h
+        << "\" stroke=\"#bbb\" stroke-dasharray=\"3,3\"/><text x=\"" << x + 3 << "\" y=\"" << y0 + panel_h + 14
+        << "\">" << d << "</text>\n";
+    }
+  };
+  auto nice_max = [](double v) {
+    if (!(v > 0.0)) return 1.0;
+    const double e = std::pow(10.0, std::floor(std::log10(v)));
+    for (double m : {1.0, 2.0, 2.5, 5.0, 10.0}) {
+      if (v <= m * e) return m * e;
+    }
+    return 10.0 * e;
+  };
+  // Panel 1: mixing height (filled) and residual-layer top (line).
+  {
+    const int y0 = top;
+    double hmax = 0.0;
+    for (const auto& h : r.hours) hmax = std::max({hmax, h.mixing_height_m, h.residual_top_m});
+    hmax = nice_max(hmax);
+    axis(y0, hmax, "height [m]");
+    std::ostringstream area, rl;
+    area << "M" << x_of(0) << "," << y0 + panel_h;
+    for (std::size_t i = 0; i < n; ++i) {
+      const double y = y0 + panel_h - panel_h * r.hours[i].mixing_height_m / hmax;
+      area << " L" << x_of(static_cast<double>(i)) << "," << y << " L" << x_of(static_cast<double>(i + 1)) << "," << y;
+      rl << (i == 0 ? "M" : " L") << x_of(static_cast<double>(i) + 0.5) << ","
+         << y0 + panel_h - panel_h * r.hours[i].residual_top_m / hmax;
+    }
+    area << " L" << x_of(static_cast<double>(n)) << "," << y0 + panel_h << " Z";
+    o << "<path d=\"" << area.str() << "\" fill=\"#a7c6da\" stroke=\"none\"/>\n";
+    o << "<path d=\"" << rl.str() << "\" fill=\"none\" stroke=\"#3d5a80\" stroke-width=\"1.2\" stroke-dasharray=\"5,3\"/>\n";
+    for (std::size_t i = 0; i < n; ++i) {
+      if (!r.hours[i].calm_floor) continue;
+      o << "<rect x=\"" << x_of(static_cast<double>(i)) << "\" y=\"" << y0 + panel_h - 6 << "\" width=\""
+        << plot_w / static_cast<double>(n) << "\" height=\"6\" fill=\"#c8553d\"/>\n";
+    }
+    o << "<text x=\"" << left + 8 << "\" y=\"" << y0 + 16
+      << "\">mixing height (filled), residual-layer top (dashed), calm-floor hours (red ticks)</text>\n";
+  }
+  // One panel per pollutant: stacked parts.
+  for (std::size_t p = 0; p < r.n_pollutants; ++p) {
+    const PollutantSpec& ps = c.pollutants[p];
+    const int y0 = top + static_cast<int>(p + 1) * (panel_h + gap);
+    double vmax = 0.0;
+    for (std::size_t i = 0; i < n; ++i) vmax = std::max(vmax, in_unit(ps, r.total(i, p)));
+    vmax = nice_max(vmax);
+    axis(y0, vmax, ps.name + " [" + unit_of(ps) + "]");
+    std::vector<double> base(n, 0.0);
+    double legend_x = left + 8;
+    for (std::size_t j = 0; j < r.n_parts; ++j) {
+      bool any = false;
+      for (std::size_t i = 0; i < n; ++i) any = any || r.mean(i, p, j) > 0.0;
+      if (!any) continue;
+      std::ostringstream d;
+      for (std::size_t i = 0; i < n; ++i) {
+        const double y = y0 + panel_h - panel_h * (base[i] + in_unit(ps, r.mean(i, p, j))) / vmax;
+        d << (i == 0 ? "M" : " L") << x_of(static_cast<double>(i)) << "," << y << " L"
+          << x_of(static_cast<double>(i + 1)) << "," << y;
+      }
+      for (std::size_t k = n; k-- > 0;) {
+        const double y = y0 + panel_h - panel_h * base[k] / vmax;
+        d << " L" << x_of(static_cast<double>(k + 1)) << "," << y << " L" << x_of(static_cast<double>(k)) << "," << y;
+      }
+      d << " Z";
+      const char* colour = kColours[j % 8];
+      o << "<path d=\"" << d.str() << "\" fill=\"" << colour << "\" stroke=\"none\"/>\n";
+      for (std::size_t i = 0; i < n; ++i) base[i] += in_unit(ps, r.mean(i, p, j));
+      o << "<rect x=\"" << legend_x << "\" y=\"" << y0 + 7 << "\" width=\"10\" height=\"10\" fill=\"" << colour
+        << "\"/><text x=\"" << legend_x + 14 << "\" y=\"" << y0 + 16 << "\">" << part_name(c, j) << "</text>\n";
+      legend_x += 24 + 7.0 * static_cast<double>(part_name(c, j).size());
+    }
+  }
+  o << "<text x=\"" << left << "\" y=\"" << H - 10 << "\" fill=\"#555\">lidbox " << LIDBOX_VERSION
+    << " - hour means of a single well-mixed box; parts stacked: background, then each sector</text>\n</svg>\n";
+  return o.str();
+}
+
+std::vector<OutputFile> render_run_outputs(const CaseSpec& c, const MetSeries& met, const RunResult& r,
+                                           const StandardsReport* standards) {
+  std::vector<OutputFile> files = {{"hourly.csv", render_hourly_csv(c, r)},
+                                   {"budget.csv", render_budget_csv(c, r)},
+                                   {"summary.txt", render_summary(c, met, r, standards)},
+                                   {"chart.svg", render_chart_svg(c, r)}};
+  if (standards) {
+    for (auto& f : render_standards_report(*standards)) files.push_back(std::move(f));
+  }
+  return files;
+}
+
+}  // namespace lidbox

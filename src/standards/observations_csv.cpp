@@ -1,0 +1,172 @@
+#include "lidbox/standards/observations_csv.hpp"
+
+#include <charconv>
+#include <cmath>
+#include <fstream>
+#include <sstream>
+
+#include "base/civil_calendar.hpp"
+#include "lidbox/base/concentration_units.hpp"
+#include "lidbox/base/error.hpp"
+#include "lidbox/base/text.hpp"
+#include "lidbox/base/time.hpp"
+#include "lidbox/standards/pollutant.hpp"
+
+namespace lidbox {
+
+namespace {
+
+std::string_view trim_view(std::string_view s) {
+  while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
+  while (!s.empty() && (s.back() == ' ' || s.back() == '\t' || s.back() == '\r'))
+    s.remove_suffix(1);
+  return s;
+}
+
+// The met reader's CSV splitter (RFC 4180 quotes), each cell trimmed.
+std::vector<std::string> split_cells(std::string_view line) {
+  std::vector<std::string> cells = split_csv_row(std::string(line));
+  for (auto& c : cells) c = std::string(trim_view(c));
+  return cells;
+}
+
+}  // namespace
+
+int parse_utc_offset_s(std::string_view text, std::string_view where) {
+  // Local standard time is the zone's standard offset, also for a zone with daylight saving.
+  return TimeZone::parse(trim_view(text), where).standard_offset_s();
+}
+
+UtcSeconds parse_instant_with_offset(std::string_view text, std::string_view where) {
+  return parse_iso8601(text, nullptr, where);
+}
+
+Observations parse_observations_csv(std::string_view text, std::string_view path_view) {
+  const std::string path(path_view);
+  if (text.size() >= 3 && text.substr(0, 3) == "\xEF\xBB\xBF") text.remove_prefix(3);
+  Observations obs;
+  obs.path = path;
+  struct Column {
+    std::string pollutant;
+    std::string unit;
+  };
+  std::vector<Column> columns;
+  std::vector<std::vector<double>> values;
+  bool have_header = false;
+  UtcSeconds first = 0;
+  UtcSeconds previous = 0;
+  std::size_t previous_line = 0;
+  std::size_t line_no = 0;
+  std::size_t pos = 0;
+  while (pos <= text.size()) {
+    const std::size_t nl = text.find('\n', pos);
+    const std::string_view raw =
+        text.substr(pos, nl == std::string_view::npos ? text.size() - pos : nl - pos);
+    pos = nl == std::string_view::npos ? text.size() + 1 : nl + 1;
+    ++line_no;
+    const std::string_view line = trim_view(raw);
+    if (line.empty() || line.front() == '#') continue;
+    const std::string where = path + ":" + std::to_string(line_no);
+    const auto cells = split_cells(line);
+    if (!have_header) {
+      if (cells.size() < 2 || !(cells[0] == "time" || cells[0] == "Time")) {
+        throw InputError(where, "header \"" + std::string(line) + "\"",
+                         "\"time\" followed by columns like \"PM2.5 [ug/m3]\"");
+      }
+      for (std::size_t c = 1; c < cells.size(); ++c) {
+        const std::string_view cell = cells[c];
+        const auto open = cell.find('[');
+        const auto close = cell.rfind(']');
+        if (open == std::string_view::npos || close == std::string_view::npos || close < open ||
+            close + 1 != cell.size()) {
+          throw InputError(where + ": column " + std::to_string(c + 1),
+                           "header \"" + std::string(cell) + "\" has no unit",
+                           "\"<pollutant> [<unit>]\", e.g. \"PM2.5 [ug/m3]\"");
+        }
+        const std::string name(trim_view(cell.substr(0, open)));
+        const std::string unit_text(trim_view(cell.substr(open + 1, close - open - 1)));
+        const std::string col_where = where + ": column \"" + std::string(cell) + "\"";
+        const PollutantInfo& p = pollutant_or_throw(name, col_where);
+        const auto unit = parse_concentration_unit(unit_text, p.molar_mass_g_mol,
+                                                   kUsReferenceConditions, col_where);
+        for (const Column& other : columns) {
+          if (other.pollutant == p.name) {
+            throw InputError(col_where, "a second column for " + std::string(p.name),
+                             "one column per pollutant");
+          }
+        }
+        columns.push_back(Column{p.name, unit.canonical});
+      }
+      values.resize(columns.size());
+      have_header = true;
+      continue;
+    }
+    if (cells.size() != columns.size() + 1) {
+      throw InputError(where, std::to_string(cells.size()) + " cells",
+                       std::to_string(columns.size() + 1) + " cells as in the header");
+    }
+    const UtcSeconds t = parse_instant_with_offset(cells[0], where + ": time");
+    std::size_t index = 0;
+    if (obs.rows == 0) {
+      first = t;
+    } else {
+      if (t <= previous) {
+        throw InputError(where,
+                         "time " + std::string(cells[0]) +
+                             (t == previous ? " repeats" : " goes back before") +
+                             " the hour on line " + std::to_string(previous_line),
+                         "strictly increasing hours");
+      }
+      if ((t - first) % kSecondsPerHour != 0) {
+        throw InputError(where,
+                         "time " + std::string(cells[0]) + " is off the hourly grid of line " +
+                             std::to_string(previous_line),
+                         "whole hours after the first row");
+      }
+      if (t - first > 30LL * 366 * kSecondsPerDay) {
+        throw InputError(
+            where, "time " + std::string(cells[0]) + " is more than 30 years after the first row",
+            "at most 30 years of hourly data");
+      }
+    }
+    index = static_cast<std::size_t>((t - first) / kSecondsPerHour);
+    for (std::size_t c = 0; c < columns.size(); ++c) {
+      std::vector<double>& v = values[c];
+      v.resize(index, kMissing);
+      const std::string_view cell = cells[c + 1];
+      if (cell.empty()) {
+        v.push_back(kMissing);
+        continue;
+      }
+      double x = 0.0;
+      const auto [end, ec] = std::from_chars(cell.data(), cell.data() + cell.size(), x);
+      if (ec != std::errc() || end != cell.data() + cell.size() || !std::isfinite(x)) {
+        throw InputError(
+            where + ": column \"" + columns[c].pollutant + " [" + columns[c].unit + "]\"",
+            "value \"" + std::string(cell) + "\"",
+            "a number, or an empty cell for a missing value");
+      }
+      v.push_back(x);
+    }
+    previous = t;
+    previous_line = line_no;
+    ++obs.rows;
+  }
+  if (!have_header)
+    throw InputError(path, "no header line", "\"time\" followed by pollutant columns");
+  if (obs.rows == 0) throw InputError(path, "no data rows", "at least one hourly row");
+  for (std::size_t c = 0; c < columns.size(); ++c) {
+    obs.series[columns[c].pollutant] = HourlySeries{first, std::move(values[c]), columns[c].unit};
+  }
+  return obs;
+}
+
+Observations read_observations_csv(const std::filesystem::path& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw InputError(path.string(), "cannot be read", "a readable observations CSV file");
+  std::ostringstream text;
+  text << in.rdbuf();
+  return parse_observations_csv(text.str(), path.string());
+}
+
+}  // namespace lidbox

@@ -1,0 +1,520 @@
+#include "lidbox/standards/rule_set.hpp"
+
+#include <toml++/toml.h>
+#include <algorithm>
+#include <cstdlib>
+#include <fstream>
+#include <set>
+#include <sstream>
+
+#include "lidbox/base/error.hpp"
+#include "lidbox/standards/pollutant.hpp"
+
+namespace lidbox {
+
+const char* to_string(StatisticKind s) {
+  switch (s) {
+    case StatisticKind::hourly_value:
+      return "hourly_value";
+    case StatisticKind::running_mean:
+      return "running_mean";
+    case StatisticKind::daily_mean:
+      return "daily_mean";
+    case StatisticKind::daily_max_1h:
+      return "daily_max_1h";
+    case StatisticKind::daily_max_8h_17_windows:
+      return "daily_max_8h_17_windows";
+    case StatisticKind::daily_max_8h_24_windows:
+      return "daily_max_8h_24_windows";
+    case StatisticKind::annual_mean:
+      return "annual_mean";
+    case StatisticKind::annual_mean_of_quarterly_means:
+      return "annual_mean_of_quarterly_means";
+    case StatisticKind::peak_season_mean:
+      return "peak_season_mean";
+  }
+  return "?";
+}
+
+const char* to_string(LimitForm f) {
+  switch (f) {
+    case LimitForm::exceedances:
+      return "exceedances";
+    case LimitForm::nth_highest:
+      return "nth_highest";
+    case LimitForm::percentile:
+      return "percentile";
+    case LimitForm::annual_value:
+      return "annual_value";
+  }
+  return "?";
+}
+
+const char* to_string(RankingTable t) {
+  switch (t) {
+    case RankingTable::us_98th:
+      return "us_98th";
+    case RankingTable::us_99th:
+      return "us_99th";
+    case RankingTable::nearest_rank:
+      return "nearest_rank";
+  }
+  return "?";
+}
+
+namespace {
+
+constexpr StatisticKind kStatistics[] = {
+    StatisticKind::hourly_value,
+    StatisticKind::running_mean,
+    StatisticKind::daily_mean,
+    StatisticKind::daily_max_1h,
+    StatisticKind::daily_max_8h_17_windows,
+    StatisticKind::daily_max_8h_24_windows,
+    StatisticKind::annual_mean,
+    StatisticKind::annual_mean_of_quarterly_means,
+    StatisticKind::peak_season_mean,
+};
+constexpr LimitForm kForms[] = {LimitForm::exceedances, LimitForm::nth_highest,
+                                LimitForm::percentile, LimitForm::annual_value};
+constexpr RankingTable kRankings[] = {RankingTable::us_98th, RankingTable::us_99th,
+                                      RankingTable::nearest_rank};
+
+template <class E, std::size_t N>
+std::vector<std::string> names_of(const E (&all)[N]) {
+  std::vector<std::string> out;
+  for (E e : all) out.emplace_back(to_string(e));
+  return out;
+}
+
+std::string join(const std::vector<std::string>& v) {
+  std::string out;
+  for (const auto& s : v) out += (out.empty() ? "" : ", ") + s;
+  return out;
+}
+
+// One TOML table being read: remembers which keys were used so leftovers can be reported.
+class TableReader {
+ public:
+  // Every key of the table must be in `allowed`; checked first, so a misspelt key is reported
+  // as such rather than as a missing one.
+  TableReader(const toml::table& t, std::string path, std::string context,
+              std::vector<std::string> allowed)
+      : t_(t), path_(std::move(path)), context_(std::move(context)) {
+    for (auto&& [k, v] : t_) {
+      const std::string key(k.str());
+      if (std::find(allowed.begin(), allowed.end(), key) != allowed.end()) continue;
+      throw InputError(where(&v), context_ + " has unknown key \"" + key + "\"",
+                       "one of " + join(allowed) + did_you_mean(key, allowed));
+    }
+  }
+
+  [[nodiscard]] std::string where(const toml::node* n = nullptr) const {
+    const auto& src = n ? n->source() : t_.source();
+    return path_ + ":" + std::to_string(src.begin.line);
+  }
+
+  const toml::node* node(const char* key) { return t_.get(key); }
+
+  std::string text(const char* key, bool required = true, std::string fallback = {}) {
+    const toml::node* n = node(key);
+    if (!n) return missing(key, required, "a string", std::move(fallback));
+    if (auto v = n->value<std::string>(); v && n->is_string()) return *v;
+    throw InputError(where(n), context_ + " key \"" + key + "\" is not a string", "a string");
+  }
+
+  double number(const char* key, bool required = true, double fallback = 0.0) {
+    const toml::node* n = node(key);
+    if (!n) {
+      if (required) throw InputError(where(), context_ + " has no \"" + key + "\"", "a number");
+      return fallback;
+    }
+    if (n->is_number()) return *n->value<double>();
+    throw InputError(where(n), context_ + " key \"" + key + "\" is not a number", "a number");
+  }
+
+  int integer(const char* key, bool required, int fallback, int min_value) {
+    const toml::node* n = node(key);
+    if (!n) {
+      if (required) throw InputError(where(), context_ + " has no \"" + key + "\"", "an integer");
+      return fallback;
+    }
+    if (!n->is_integer()) {
+      throw InputError(where(n), context_ + " key \"" + key + "\" is not an integer",
+                       "an integer >= " + std::to_string(min_value));
+    }
+    const std::int64_t v = *n->value<std::int64_t>();
+    if (v < min_value || v > 100000) {
+      throw InputError(where(n), context_ + " key \"" + key + "\" = " + std::to_string(v),
+                       "an integer >= " + std::to_string(min_value));
+    }
+    return static_cast<int>(v);
+  }
+
+  bool boolean(const char* key, bool fallback) {
+    const toml::node* n = node(key);
+    if (!n) return fallback;
+    if (n->is_boolean()) return *n->value<bool>();
+    throw InputError(where(n), context_ + " key \"" + key + "\" is not true/false",
+                     "true or false");
+  }
+
+ private:
+  std::string missing(const char* key, bool required, const char* what, std::string fallback) {
+    if (required) throw InputError(where(), context_ + " has no \"" + key + "\"", what);
+    return fallback;
+  }
+
+  const toml::table& t_;
+  std::string path_;
+  std::string context_;
+};
+
+template <class E, std::size_t N>
+E enum_from(const std::string& text, const E (&all)[N], const std::string& where,
+            const char* what) {
+  for (E e : all) {
+    if (text == to_string(e)) return e;
+  }
+  const auto names = names_of(all);
+  throw InputError(where, std::string("unknown ") + what + " \"" + text + "\"",
+                   "one of " + join(names) + did_you_mean(text, names));
+}
+
+Rounding parse_rounding(const std::string& text, const std::string& where) {
+  if (text == "none") return {};
+  const auto colon = text.find(':');
+  const std::string mode = text.substr(0, colon);
+  Rounding r;
+  if (mode == "round_half_up") {
+    r.mode = RoundingMode::round_half_up;
+  } else if (mode == "truncate") {
+    r.mode = RoundingMode::truncate;
+  }
+  if (r.mode == RoundingMode::none || colon == std::string::npos) {
+    throw InputError(where, "rounding \"" + text + "\"",
+                     "none, round_half_up:<digits> or truncate:<digits>");
+  }
+  try {
+    std::size_t used = 0;
+    r.decimals = std::stoi(text.substr(colon + 1), &used);
+    if (used != text.size() - colon - 1 || r.decimals < -6 || r.decimals > 9) throw 0;
+  } catch (...) {
+    throw InputError(where, "rounding \"" + text + "\"", "a digit count from -6 to 9 after ':'");
+  }
+  return r;
+}
+
+// "8-hour" -> 8; "day" -> 24; "year" / "peak-season" -> 0. Unknown spellings are errors.
+int parse_averaging(const std::string& text, const std::string& where) {
+  if (text == "day") return 24;
+  if (text == "year" || text == "calendar-year" || text == "peak-season") return 0;
+  const std::string suffix = "-hour";
+  if (text.size() > suffix.size() &&
+      text.compare(text.size() - suffix.size(), suffix.size(), suffix) == 0) {
+    const std::string digits = text.substr(0, text.size() - suffix.size());
+    if (!digits.empty() && digits.size() <= 4 &&
+        std::all_of(digits.begin(), digits.end(), [](char c) { return c >= '0' && c <= '9'; })) {
+      const int h = std::stoi(digits);
+      if (h >= 1 && h <= 8784) return h;
+    }
+  }
+  throw InputError(where, "averaging \"" + text + "\"",
+                   "\"<k>-hour\" (k = 1 .. 8784), \"day\", \"year\" or \"peak-season\"");
+}
+
+// Checks that statistic and averaging agree and fills averaging_h.
+int check_averaging(StatisticKind s, const std::string& averaging, const std::string& where) {
+  const int h = parse_averaging(averaging, where);
+  auto need = [&](bool ok, const char* expected) {
+    if (!ok) {
+      throw InputError(where,
+                       "averaging \"" + averaging + "\" with statistic \"" + to_string(s) + "\"",
+                       expected);
+    }
+  };
+  switch (s) {
+    case StatisticKind::hourly_value:
+    case StatisticKind::daily_max_1h:
+      need(h == 1, "averaging \"1-hour\"");
+      return 1;
+    case StatisticKind::running_mean:
+      need(h >= 2, "averaging \"<k>-hour\" with k >= 2");
+      return h;
+    case StatisticKind::daily_mean:
+      need(h == 24, "averaging \"24-hour\" or \"day\"");
+      return 24;
+    case StatisticKind::daily_max_8h_17_windows:
+    case StatisticKind::daily_max_8h_24_windows:
+      need(h == 8, "averaging \"8-hour\"");
+      return 8;
+    case StatisticKind::annual_mean:
+    case StatisticKind::annual_mean_of_quarterly_means:
+      need(h == 0 && averaging != "peak-season", "averaging \"year\"");
+      return 0;
+    case StatisticKind::peak_season_mean:
+      need(averaging == "peak-season", "averaging \"peak-season\"");
+      return 0;
+  }
+  return h;
+}
+
+bool is_annual(StatisticKind s) {
+  return s == StatisticKind::annual_mean || s == StatisticKind::annual_mean_of_quarterly_means ||
+         s == StatisticKind::peak_season_mean;
+}
+
+std::string check_tag(const std::string& checked, const std::string& where) {
+  for (const char* tag : {"SRC", "MEM", "PRAC", "DERIVED"}) {
+    if (checked.rfind(tag, 0) == 0) return checked;
+  }
+  throw InputError(
+      where, "checked = \"" + checked + "\"",
+      "a text starting with SRC, MEM, PRAC or DERIVED saying how the entry was verified");
+}
+
+Limit read_limit(const toml::table& t, const std::string& path, const ReferenceConditions& ref) {
+  TableReader r(t, path, "[[limit]]",
+                {"id",
+                 "pollutant",
+                 "kind",
+                 "averaging",
+                 "statistic",
+                 "level",
+                 "unit",
+                 "form",
+                 "allowed_exceedances",
+                 "rank",
+                 "percentile",
+                 "ranking",
+                 "non_overlapping",
+                 "rounding",
+                 "min_valid_fraction",
+                 "incomplete_day_counts_if_above",
+                 "years_averaged",
+                 "legal_source",
+                 "legal_date",
+                 "checked",
+                 "note"});
+  Limit l;
+  l.where = r.where();
+  l.id = r.text("id");
+  l.pollutant = pollutant_or_throw(r.text("pollutant"), r.where(r.node("pollutant"))).name;
+  l.kind = r.text("kind");
+  const std::string statistic = r.text("statistic");
+  l.statistic = enum_from(statistic, kStatistics, r.where(r.node("statistic")), "statistic");
+  l.averaging = r.text("averaging");
+  l.averaging_h = check_averaging(l.statistic, l.averaging, r.where(r.node("averaging")));
+  l.level = r.number("level");
+  l.unit = r.text("unit");
+  (void)unit_factor(l.unit, l.unit, l.pollutant, ref, r.where(r.node("unit")));
+  const std::string form = r.text("form");
+  l.form = enum_from(form, kForms, r.where(r.node("form")), "form");
+  if ((l.form == LimitForm::annual_value) != is_annual(l.statistic)) {
+    throw InputError(r.where(r.node("form")),
+                     "form \"" + form + "\" with statistic \"" + statistic + "\"",
+                     is_annual(l.statistic) ? "form \"annual_value\" for an annual statistic"
+                                            : "exceedances, nth_highest or percentile");
+  }
+  l.allowed_exceedances = r.integer("allowed_exceedances", l.form == LimitForm::exceedances, 0, 0);
+  l.rank = r.integer("rank", l.form == LimitForm::nth_highest, 1, 1);
+  l.percentile = r.number("percentile", l.form == LimitForm::percentile, 0.0);
+  if (l.form == LimitForm::percentile) {
+    l.ranking = enum_from(r.text("ranking"), kRankings, r.where(r.node("ranking")), "ranking");
+    if (!(l.percentile > 0.0 && l.percentile <= 100.0)) {
+      throw InputError(r.where(r.node("percentile")), "percentile " + std::to_string(l.percentile),
+                       "a value in (0, 100]");
+    }
+  }
+  l.non_overlapping = r.boolean("non_overlapping", false);
+  if (l.non_overlapping && l.statistic != StatisticKind::running_mean) {
+    throw InputError(r.where(r.node("non_overlapping")),
+                     "non_overlapping with statistic \"" + statistic + "\"",
+                     "non_overlapping only with statistic \"running_mean\"");
+  }
+  l.rounding = parse_rounding(r.text("rounding", false, "none"), r.where(r.node("rounding")));
+  l.min_valid_fraction = r.number("min_valid_fraction", false, 0.75);
+  if (!(l.min_valid_fraction > 0.0 && l.min_valid_fraction <= 1.0)) {
+    throw InputError(r.where(r.node("min_valid_fraction")),
+                     "min_valid_fraction " + std::to_string(l.min_valid_fraction),
+                     "a fraction in (0, 1]");
+  }
+  l.incomplete_day_counts_if_above = r.boolean("incomplete_day_counts_if_above", false);
+  l.years_averaged = r.integer("years_averaged", false, 1, 1);
+  l.legal_source = r.text("legal_source");
+  l.legal_date = r.text("legal_date", false);
+  l.checked = check_tag(r.text("checked"), r.where(r.node("checked")));
+  l.note = r.text("note", false);
+  return l;
+}
+
+AlertRule read_alert(const toml::table& t, const std::string& path,
+                     const ReferenceConditions& ref) {
+  TableReader r(t, path, "[[alert]]",
+                {"id", "pollutant", "level_name", "averaging", "statistic", "threshold", "unit",
+                 "persistence", "legal_source", "legal_date", "checked", "note"});
+  AlertRule a;
+  a.where = r.where();
+  a.id = r.text("id");
+  a.pollutant = pollutant_or_throw(r.text("pollutant"), r.where(r.node("pollutant"))).name;
+  a.level_name = r.text("level_name");
+  const std::string statistic = r.text("statistic");
+  a.statistic = enum_from(statistic, kStatistics, r.where(r.node("statistic")), "statistic");
+  if (a.statistic != StatisticKind::hourly_value && a.statistic != StatisticKind::running_mean &&
+      a.statistic != StatisticKind::daily_mean) {
+    throw InputError(r.where(r.node("statistic")), "alert statistic \"" + statistic + "\"",
+                     "hourly_value, running_mean or daily_mean");
+  }
+  a.averaging = r.text("averaging");
+  a.averaging_h = check_averaging(a.statistic, a.averaging, r.where(r.node("averaging")));
+  a.threshold = r.number("threshold");
+  a.unit = r.text("unit");
+  (void)unit_factor(a.unit, a.unit, a.pollutant, ref, r.where(r.node("unit")));
+  a.persistence = r.integer("persistence", false, 1, 1);
+  a.legal_source = r.text("legal_source");
+  a.legal_date = r.text("legal_date", false);
+  a.checked = check_tag(r.text("checked"), r.where(r.node("checked")));
+  a.note = r.text("note", false);
+  return a;
+}
+
+}  // namespace
+
+double unit_factor(std::string_view series_unit, std::string_view rule_unit,
+                   std::string_view pollutant, const ReferenceConditions& ref,
+                   std::string_view where) {
+  const PollutantInfo& p = pollutant_or_throw(pollutant, where);
+  const auto from = parse_concentration_unit(series_unit, p.molar_mass_g_mol, ref, where);
+  const auto to = parse_concentration_unit(rule_unit, p.molar_mass_g_mol, ref, where);
+  return from.to_g_m3 / to.to_g_m3;
+}
+
+RuleSet parse_rule_set(std::string_view toml_text, std::string_view path_view) {
+  const std::string path(path_view);
+  toml::table root;
+  try {
+    root = toml::parse(toml_text, path);
+  } catch (const toml::parse_error& e) {
+    throw InputError(path + ":" + std::to_string(e.source().begin.line),
+                     "TOML syntax error: " + std::string(e.description()), "valid TOML");
+  }
+  RuleSet rs;
+  rs.path = path;
+  const std::vector<std::string> top_keys = {"alert", "limit", "rule_set"};
+  for (auto&& [k, v] : root) {
+    const std::string key(k.str());
+    if (std::find(top_keys.begin(), top_keys.end(), key) == top_keys.end()) {
+      throw InputError(path + ":" + std::to_string(v.source().begin.line),
+                       "unknown top-level key \"" + key + "\"",
+                       "[rule_set], [[limit]] or [[alert]]" + did_you_mean(key, top_keys));
+    }
+  }
+  const toml::table* head = root["rule_set"].as_table();
+  if (!head)
+    throw InputError(path + ":1", "no [rule_set] table", "a [rule_set] table with id and name");
+  TableReader h(*head, path, "[rule_set]",
+                {"id", "name", "legal_source", "legal_date", "note", "reference_temperature_K",
+                 "reference_pressure_Pa"});
+  rs.id = h.text("id");
+  rs.name = h.text("name");
+  rs.legal_source = h.text("legal_source");
+  rs.legal_date = h.text("legal_date");
+  rs.note = h.text("note", false);
+  rs.reference.temperature_K = h.number("reference_temperature_K");
+  rs.reference.pressure_Pa = h.number("reference_pressure_Pa");
+  if (!(rs.reference.temperature_K > 150.0 && rs.reference.temperature_K < 350.0) ||
+      !(rs.reference.pressure_Pa > 50000.0 && rs.reference.pressure_Pa < 120000.0)) {
+    throw InputError(h.where(),
+                     "reference conditions " + std::to_string(rs.reference.temperature_K) + " K, " +
+                         std::to_string(rs.reference.pressure_Pa) + " Pa",
+                     "a temperature of 150-350 K and a pressure of 50-120 kPa");
+  }
+
+  std::set<std::string> ids;
+  auto read_array = [&](const char* key, auto reader, auto& out) {
+    const toml::node* n = root.get(key);
+    if (!n) return;
+    const toml::array* arr = n->as_array();
+    if (!arr || !arr->is_array_of_tables()) {
+      throw InputError(path + ":" + std::to_string(n->source().begin.line),
+                       std::string("\"") + key + "\" is not an array of tables",
+                       std::string("[[") + key + "]] tables");
+    }
+    for (const toml::node& el : *arr) {
+      auto item = reader(*el.as_table(), path, rs.reference);
+      if (!ids.insert(item.id).second) {
+        throw InputError(item.where, "id \"" + item.id + "\" used twice",
+                         "ids unique within the file");
+      }
+      out.push_back(std::move(item));
+    }
+  };
+  read_array("limit", read_limit, rs.limits);
+  read_array("alert", read_alert, rs.alerts);
+  if (rs.limits.empty() && rs.alerts.empty()) {
+    throw InputError(path + ":1", "no [[limit]] or [[alert]] tables", "at least one rule");
+  }
+  return rs;
+}
+
+RuleSet load_rule_set_file(const std::filesystem::path& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw InputError(path.string(), "cannot be read", "a readable rule-set TOML file");
+  std::ostringstream text;
+  text << in.rdbuf();
+  return parse_rule_set(text.str(), path.string());
+}
+
+std::filesystem::path rules_directory(const std::optional<std::filesystem::path>& explicit_dir) {
+  if (explicit_dir) return *explicit_dir;
+  if (const char* env = std::getenv("LIDBOX_RULES_DIR"); env && *env) return env;
+  return std::filesystem::path(LIDBOX_SOURCE_DIR) / "src" / "data" / "rules";
+}
+
+std::vector<std::string> list_rule_sets(const std::filesystem::path& dir) {
+  std::vector<std::string> out;
+  std::error_code ec;
+  for (const auto& e : std::filesystem::directory_iterator(dir, ec)) {
+    if (e.path().extension() == ".toml") out.push_back(e.path().stem().string());
+  }
+  std::sort(out.begin(), out.end());
+  return out;
+}
+
+RuleSet load_rule_set(std::string_view name_or_path, const std::filesystem::path& dir) {
+  const std::string s(name_or_path);
+  if (s.find('/') != std::string::npos ||
+      (s.size() > 5 && s.compare(s.size() - 5, 5, ".toml") == 0)) {
+    return load_rule_set_file(s);
+  }
+  const auto file = dir / (s + ".toml");
+  if (std::filesystem::exists(file)) return load_rule_set_file(file);
+  const auto ids = list_rule_sets(dir);
+  // A unique beginning is enough ("eu-2008" for "eu-2008-50").
+  std::vector<std::string> starting;
+  for (const auto& id : ids) {
+    if (id.rfind(s, 0) == 0) starting.push_back(id);
+  }
+  if (starting.size() == 1 && !s.empty()) return load_rule_set_file(dir / (starting[0] + ".toml"));
+  throw InputError("rule set \"" + s + "\"", "not found in " + dir.string(),
+                   (ids.empty() ? std::string("a rule-set file path") : "one of " + join(ids)) +
+                       did_you_mean(s, ids));
+}
+
+std::vector<RuleSet> load_rule_sets(const std::vector<std::string>& names_or_paths,
+                                    const std::filesystem::path& dir) {
+  std::vector<RuleSet> out;
+  for (const auto& n : names_or_paths) {
+    RuleSet rs = load_rule_set(n, dir);
+    for (const RuleSet& other : out) {
+      if (other.id == rs.id) {
+        throw InputError("rule set \"" + n + "\"", "id \"" + rs.id + "\" already loaded",
+                         "each rule set once");
+      }
+    }
+    out.push_back(std::move(rs));
+  }
+  return out;
+}
+
+}  // namespace lidbox

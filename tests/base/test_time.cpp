@@ -1,0 +1,91 @@
+#include <doctest/doctest.h>
+
+#include "lidbox/base/error.hpp"
+#include "lidbox/base/time.hpp"
+
+using namespace lidbox;
+
+TEST_CASE("day counting matches known calendar dates") {
+  // 2000-03-01 is day 11017 after 1970-01-01 (closed form: 30 years incl. 7 leap days + Jan/Feb).
+  CHECK(days_from_civil(1970, 1, 1) == 0);
+  CHECK(days_from_civil(2000, 3, 1) == 11017);
+  // 2026-12-01 is a Tuesday (ISO 8601 calendar; Monday = 0, so 1).
+  CHECK(civil_from_utc_seconds(days_from_civil(2026, 12, 1) * 86400).day_of_week == 1);
+  CHECK(format_utc(utc_seconds_from_civil({2024, 2, 29, 23, 0, 0, 0})) == "2024-02-29T23:00:00Z");
+}
+
+TEST_CASE("ISO 8601 times with Z and offsets give the same instant") {
+  const UtcSeconds z = parse_iso8601("2026-01-05T13:00:00Z", nullptr, "t");
+  CHECK(parse_iso8601("2026-01-05T14:00:00+01:00", nullptr, "t") == z);
+  CHECK(parse_iso8601("2026-01-05 08:00-0500", nullptr, "t") == z);
+  CHECK(parse_iso8601("2026-01-05T18:30+05:30", nullptr, "t") == z);
+  CHECK(format_with_offset(z, -5 * 3600) == "2026-01-05T08:00:00-05:00");
+}
+
+TEST_CASE("an ISO time without an offset needs a zone, and bad times are refused whole") {
+  try {
+    (void)parse_iso8601("2026-01-05T13:00", nullptr, "met.csv:4");
+    FAIL("no error");
+  } catch (const InputError& e) {
+    CHECK(std::string(e.what()) ==
+          "met.csv:4: time \"2026-01-05T13:00\" has no UTC offset, and no time zone is given for "
+          "times without one; expected an ISO 8601 time such as 2026-01-05T13:00:00Z or "
+          "2026-01-05T14:00+01:00");
+  }
+  CHECK_THROWS_AS((void)parse_iso8601("2026-02-30T00:00Z", nullptr, "t"), InputError);
+  CHECK_THROWS_AS((void)parse_iso8601("2026-01-05T13:00:00.5Z", nullptr, "t"), InputError);
+  CHECK_THROWS_AS((void)parse_iso8601("05/01/2026 13:00", nullptr, "t"), InputError);
+  const TimeZone plus2 = TimeZone::parse("+02:00", "t");
+  CHECK(parse_iso8601("2026-01-05T15:00", &plus2, "t") == parse_iso8601("2026-01-05T13:00Z", nullptr, "t"));
+}
+
+TEST_CASE("a POSIX TZ string follows the POSIX sign and the EU summer-time rule") {
+  // EU summer time: last Sunday of March 01:00 UTC to last Sunday of October 01:00 UTC
+  // (Directive 2000/84/EC, Art. 2 and 3). In 2026: 29 March and 25 October.
+  const TimeZone cet = TimeZone::parse("CET-1CEST,M3.5.0,M10.5.0/3", "t");
+  CHECK(cet.standard_offset_s() == 3600);
+  CHECK(cet.has_daylight_saving());
+  const UtcSeconds switch_on = parse_iso8601("2026-03-29T01:00:00Z", nullptr, "t");
+  CHECK(cet.civil_offset_s(switch_on - 1) == 3600);
+  CHECK(cet.civil_offset_s(switch_on) == 7200);
+  const UtcSeconds switch_off = parse_iso8601("2026-10-25T01:00:00Z", nullptr, "t");
+  CHECK(cet.civil_offset_s(switch_off - 1) == 7200);
+  CHECK(cet.civil_offset_s(switch_off) == 3600);
+  // Local standard time never shifts.
+  CHECK(cet.standard(switch_on).hour == 2);
+  CHECK(cet.civil(switch_on).hour == 3);
+}
+
+TEST_CASE("US Eastern rules: second Sunday of March to first Sunday of November at 02:00 local") {
+  // 15 U.S.C. 260a as amended by the Energy Policy Act of 2005: in 2026, 8 March and 1 November.
+  const TimeZone est = TimeZone::parse("EST5EDT,M3.2.0,M11.1.0", "t");
+  CHECK(est.standard_offset_s() == -5 * 3600);
+  CHECK(est.civil_offset_s(parse_iso8601("2026-03-08T06:59:59Z", nullptr, "t")) == -5 * 3600);
+  CHECK(est.civil_offset_s(parse_iso8601("2026-03-08T07:00:00Z", nullptr, "t")) == -4 * 3600);
+  CHECK(est.civil_offset_s(parse_iso8601("2026-11-01T05:59:59Z", nullptr, "t")) == -4 * 3600);
+  CHECK(est.civil_offset_s(parse_iso8601("2026-11-01T06:00:00Z", nullptr, "t")) == -5 * 3600);
+}
+
+TEST_CASE("local times skipped or repeated at a clock change are errors naming the place") {
+  const TimeZone est = TimeZone::parse("EST5EDT,M3.2.0,M11.1.0", "t");
+  try {
+    (void)parse_iso8601("2026-03-08T02:30", &est, "met.csv:7");
+    FAIL("no error");
+  } catch (const InputError& e) {
+    CHECK(std::string(e.what()) ==
+          "met.csv:7: local time 2026-03-08T02:30:00 does not exist in zone "
+          "\"EST5EDT,M3.2.0,M11.1.0\" (clocks go forward); expected a local time that exists, or "
+          "a time with an explicit UTC offset");
+  }
+  CHECK_THROWS_AS((void)parse_iso8601("2026-11-01T01:30", &est, "t"), InputError);
+  CHECK(parse_iso8601("2026-11-01T00:30", &est, "t") == parse_iso8601("2026-11-01T04:30Z", nullptr, "t"));
+}
+
+TEST_CASE("malformed zones are refused instead of silently meaning UTC") {
+  CHECK_THROWS_AS((void)TimeZone::parse("Europe/Paris", "t"), InputError);
+  CHECK_THROWS_AS((void)TimeZone::parse("garbage", "t"), InputError);
+  CHECK_THROWS_AS((void)TimeZone::parse("CET-1CEST", "t"), InputError);
+  CHECK_THROWS_AS((void)TimeZone::parse("+25:00", "t"), InputError);
+  CHECK(TimeZone::parse("<+0530>-5:30", "t").standard_offset_s() == 19800);
+  CHECK(TimeZone::parse("-0330", "t").standard_offset_s() == -12600);
+}

@@ -1,0 +1,185 @@
+#include <doctest/doctest.h>
+
+#include <algorithm>
+#include <string>
+
+#include "lidbox/base/error.hpp"
+#include "lidbox/standards/rule_set.hpp"
+
+using namespace lidbox;
+
+namespace {
+
+const std::filesystem::path kRulesDir = std::filesystem::path(LIDBOX_SOURCE_DIR) / "src" / "data" / "rules";
+
+// A minimal valid file; tests replace one line to make it wrong.
+std::string good_file(const std::string& limit_body) {
+  return "[rule_set]\n"                        // line 1
+         "id = \"local\"\n"                    // 2
+         "name = \"Local test rules\"\n"       // 3
+         "legal_source = \"invented\"\n"       // 4
+         "legal_date = \"2026-01-01\"\n"       // 5
+         "reference_temperature_K = 293.0\n"   // 6
+         "reference_pressure_Pa = 101300.0\n"  // 7
+         "\n"                                  // 8
+         "[[limit]]\n"                         // 9
+         + limit_body;
+}
+
+const char* kLimit =
+    "id = \"PM10-day\"\n"            // 10
+    "pollutant = \"PM10\"\n"         // 11
+    "kind = \"limit value\"\n"       // 12
+    "averaging = \"day\"\n"          // 13
+    "statistic = \"daily_mean\"\n"   // 14
+    "level = 50.0\n"                 // 15
+    "unit = \"ug/m3\"\n"             // 16
+    "form = \"exceedances\"\n"       // 17
+    "allowed_exceedances = 35\n"     // 18
+    "legal_source = \"invented\"\n"  // 19
+    "checked = \"PRAC: test\"\n";    // 20
+
+std::string replaced(std::string text, const std::string& from, const std::string& to) {
+  const auto pos = text.find(from);
+  REQUIRE(pos != std::string::npos);
+  text.replace(pos, from.size(), to);
+  return text;
+}
+
+std::string error_of(const std::string& text) {
+  try {
+    (void)parse_rule_set(text, "local.toml");
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "no error";
+}
+
+}  // namespace
+
+TEST_CASE("the four shipped rule sets load") {
+  const auto ids = list_rule_sets(kRulesDir);
+  CHECK(ids == std::vector<std::string>{"eu-2008-50", "eu-2024-2881", "us-naaqs", "who-2021"});
+  for (const auto& id : ids) {
+    const RuleSet rs = load_rule_set(id, kRulesDir);
+    CHECK(rs.id == id);
+    CHECK_FALSE(rs.limits.empty());
+    CHECK_FALSE(rs.legal_source.empty());
+    for (const auto& l : rs.limits) {
+      CHECK_FALSE(l.legal_source.empty());
+      CHECK_FALSE(l.checked.empty());
+    }
+  }
+}
+
+TEST_CASE("the US rule set carries the 2024 PM2.5 annual level of 9.0") {
+  // 89 FR 16202 (6 March 2024), effective 6 May 2024: primary annual PM2.5 lowered to 9.0 ug/m3.
+  const RuleSet us = load_rule_set("us-naaqs", kRulesDir);
+  const auto it = std::find_if(us.limits.begin(), us.limits.end(),
+                               [](const Limit& l) { return l.id == "PM2.5-annual-primary"; });
+  REQUIRE(it != us.limits.end());
+  CHECK(it->level == 9.0);
+  CHECK(it->statistic == StatisticKind::annual_mean_of_quarterly_means);
+  CHECK(it->years_averaged == 3);
+  // 40 CFR 50.3: 25 degC and 760 mm Hg.
+  CHECK(us.reference.temperature_K == 298.15);
+  CHECK(us.reference.pressure_Pa == 101325.0);
+  // EU reference conditions 293 K and 101.3 kPa (Directive 2000/69/EC Annex II).
+  const RuleSet eu = load_rule_set("eu-2008-50", kRulesDir);
+  CHECK(eu.reference.temperature_K == 293.0);
+  CHECK(eu.reference.pressure_Pa == 101300.0);
+}
+
+TEST_CASE("a good minimal file parses") {
+  const RuleSet rs = parse_rule_set(good_file(kLimit), "local.toml");
+  REQUIRE(rs.limits.size() == 1);
+  CHECK(rs.limits[0].where == "local.toml:9");
+  CHECK(rs.limits[0].averaging_h == 24);
+  CHECK(rs.limits[0].allowed_exceedances == 35);
+}
+
+TEST_CASE("an unknown statistic names file and line and lists the choices") {
+  const std::string text =
+      good_file(replaced(kLimit, "statistic = \"daily_mean\"", "statistic = \"daily_maen\""));
+  CHECK(error_of(text) ==
+        "local.toml:14: unknown statistic \"daily_maen\"; expected one of hourly_value, "
+        "running_mean, daily_mean, daily_max_1h, daily_max_8h_17_windows, "
+        "daily_max_8h_24_windows, annual_mean, annual_mean_of_quarterly_means, "
+        "peak_season_mean (did you mean \"daily_mean\"?)");
+}
+
+TEST_CASE("an unknown key gives a did-you-mean hint") {
+  const std::string text = good_file(replaced(kLimit, "level = 50.0", "levle = 50.0"));
+  CHECK(error_of(text) ==
+        "local.toml:15: [[limit]] has unknown key \"levle\"; expected one of id, pollutant, "
+        "kind, averaging, statistic, level, unit, form, allowed_exceedances, rank, percentile, "
+        "ranking, non_overlapping, rounding, min_valid_fraction, "
+        "incomplete_day_counts_if_above, years_averaged, legal_source, legal_date, checked, "
+        "note (did you mean \"level\"?)");
+}
+
+TEST_CASE("a unit that cannot be converted for the pollutant is refused") {
+  // PM10 is a mass concentration; a mixing ratio has no meaning for it.
+  const std::string text = good_file(replaced(kLimit, "unit = \"ug/m3\"", "unit = \"ppb\""));
+  CHECK(error_of(text) ==
+        "local.toml:16: unit \"ppb\" is a mixing ratio; expected a molar_mass_g_mol for this "
+        "pollutant, or a mass unit such as ug/m3");
+  const std::string unknown = good_file(replaced(kLimit, "unit = \"ug/m3\"", "unit = \"grains\""));
+  CHECK(error_of(unknown) ==
+        "local.toml:16: unknown concentration unit \"grains\"; expected one of g/m3, mg/m3, "
+        "ug/m3, ng/m3, ppm, ppb, ppt");
+}
+
+TEST_CASE("bad rule files: pollutant, averaging, form, rounding, syntax and duplicates") {
+  CHECK(error_of(good_file(replaced(kLimit, "\"PM10\"", "\"PM01\""))) ==
+        "local.toml:11: unknown pollutant \"PM01\"; expected one of PM2.5, PM10, O3, NO2, SO2, "
+        "CO, NO, benzene (did you mean \"PM10\"?)");
+  CHECK(error_of(good_file(replaced(kLimit, "averaging = \"day\"", "averaging = \"8-hour\""))) ==
+        "local.toml:13: averaging \"8-hour\" with statistic \"daily_mean\"; expected averaging "
+        "\"24-hour\" or \"day\"");
+  CHECK(
+      error_of(good_file(replaced(kLimit, "form = \"exceedances\"", "form = \"annual_value\""))) ==
+      "local.toml:17: form \"annual_value\" with statistic \"daily_mean\"; expected "
+      "exceedances, nth_highest or percentile");
+  CHECK(error_of(good_file(std::string(kLimit) + "rounding = \"round:1\"\n")) ==
+        "local.toml:21: rounding \"round:1\"; expected none, round_half_up:<digits> or "
+        "truncate:<digits>");
+  CHECK(error_of(good_file(replaced(kLimit, "level = 50.0", "level = \"50\""))) ==
+        "local.toml:15: [[limit]] key \"level\" is not a number; expected a number");
+  CHECK(error_of(good_file(replaced(kLimit, "checked = \"PRAC: test\"", "checked = \"looked\""))) ==
+        "local.toml:20: checked = \"looked\"; expected a text starting with SRC, MEM, PRAC or "
+        "DERIVED saying how the entry was verified");
+  CHECK(error_of(good_file(std::string(kLimit) + "\n[[limit]]\n" + kLimit)) ==
+        "local.toml:22: id \"PM10-day\" used twice; expected ids unique within the file");
+  const std::string syntax = error_of("[rule_set]\nid = \n");
+  CHECK(syntax.rfind("local.toml:2: TOML syntax error: ", 0) == 0);
+  CHECK(error_of(good_file(std::string(kLimit)) + "[[limt]]\n") ==
+        "local.toml:21: unknown top-level key \"limt\"; expected [rule_set], [[limit]] or "
+        "[[alert]] (did you mean \"limit\"?)");
+}
+
+TEST_CASE("a rule set is found by id or by path, and an unknown id suggests the closest") {
+  CHECK(load_rule_set((kRulesDir / "who-2021.toml").string(), kRulesDir).id == "who-2021");
+  try {
+    (void)load_rule_set("us-naqs", kRulesDir);
+    FAIL("no error");
+  } catch (const InputError& e) {
+    CHECK(std::string(e.what()) == "rule set \"us-naqs\": not found in " + kRulesDir.string() +
+                                       "; expected one of eu-2008-50, eu-2024-2881, us-naaqs, "
+                                       "who-2021 (did you mean \"us-naaqs\"?)");
+  }
+}
+
+TEST_CASE("the rules directory can be given explicitly") {
+  CHECK(rules_directory(std::filesystem::path("/x/y")) == std::filesystem::path("/x/y"));
+}
+
+TEST_CASE("several rule sets load in order and a repeated one is refused") {
+  const auto sets = load_rule_sets({"us-naaqs", "eu-2008"}, kRulesDir);
+  REQUIRE(sets.size() == 2);
+  CHECK(sets[1].id == "eu-2008-50");
+  CHECK_THROWS_WITH_AS(load_rule_sets({"eu-2008-50", "eu-2008"}, kRulesDir),
+                       "rule set \"eu-2008\": id \"eu-2008-50\" already loaded; expected each "
+                       "rule set once",
+                       InputError);
+}
