@@ -41,7 +41,7 @@ std::optional<StandardsReport> run_standards(const CaseSpec& c, const RunResult&
   opt.aqi_table = parse_aqi_table(st.aqi_table, c.file + ": [standards] aqi_table");
   opt.with_aqi = st.aqi;
   opt.with_aqhi = st.aqhi;
-  for (const auto& [k, m] : st.rolling_h) opt.rolling.push_back({k, m});
+  for (const auto& [k, m] : st.rolling_h) opt.rolling.push_back({k, m > 0 ? m : min_valid_count(k)});
   opt.input_label = "model run " + c.file + " (case " + c.name + ", hour means of the mixed layer)";
   opt.file_prefix = "";
   return compute_standards_report(run_series(c, r, nullptr), std::move(opt));

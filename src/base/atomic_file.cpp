@@ -24,6 +24,13 @@ std::filesystem::path temporary_for(const std::filesystem::path& target) {
 
 }  // namespace
 
+const OutputFile& output_named(const std::vector<OutputFile>& files, std::string_view name) {
+  for (const auto& f : files) {
+    if (f.name == name) return f;
+  }
+  throw InternalError("no output file named \"" + std::string(name) + "\" in the set");
+}
+
 std::vector<std::filesystem::path> write_output_files(const std::filesystem::path& dir,
                                                       const std::vector<OutputFile>& files) {
   std::vector<std::pair<std::filesystem::path, std::string>> targets;

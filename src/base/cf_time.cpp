@@ -6,21 +6,10 @@
 #include <vector>
 
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/text.hpp"
 
 namespace lidbox {
 namespace {
-
-std::string lower(std::string_view s) {
-  std::string r(s);
-  for (auto& ch : r) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
-  return r;
-}
-
-std::string_view trim(std::string_view s) {
-  while (!s.empty() && std::isspace(static_cast<unsigned char>(s.front()))) s.remove_prefix(1);
-  while (!s.empty() && std::isspace(static_cast<unsigned char>(s.back()))) s.remove_suffix(1);
-  return s;
-}
 
 // The first instant of the Gregorian reform (1582-10-15T00:00:00), from which the "standard"
 // calendar and the proleptic Gregorian day count agree (CF 4.4.2).

@@ -76,20 +76,18 @@ std::string format_civil(const CivilTime& c) {
   return buf;
 }
 
-std::string format_offset(int offset_s) {
+}  // namespace
+
+std::string format_utc_offset(int offset_s) {
   const char sign = offset_s < 0 ? '-' : '+';
   const int a = offset_s < 0 ? -offset_s : offset_s;
   return std::string(1, sign) + two(a / 3600) + ":" + two((a % 3600) / 60);
 }
 
-}  // namespace
-
-std::string format_utc_offset(int offset_s) { return format_offset(offset_s); }
-
 std::string format_utc(UtcSeconds t) { return format_civil(civil_from_utc_seconds(t)) + "Z"; }
 
 std::string format_with_offset(UtcSeconds t, int offset_s) {
-  return format_civil(civil_from_utc_seconds(t + offset_s)) + format_offset(offset_s);
+  return format_civil(civil_from_utc_seconds(t + offset_s)) + format_utc_offset(offset_s);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -312,7 +310,7 @@ UtcSeconds TimeZone::from_civil(const CivilTime& local, std::string_view where) 
                      "local time " + format_civil(local) + " occurs twice in zone \"" + spec_ +
                          "\" (clocks go back)",
                      "a time with an explicit UTC offset such as \"" + format_civil(local) +
-                         format_offset(rules_->dst_offset_s) + "\"");
+                         format_utc_offset(rules_->dst_offset_s) + "\"");
   }
   if (a_ok) return a;
   if (b_ok) return b;

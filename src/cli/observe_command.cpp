@@ -8,7 +8,7 @@
 #include "lidbox/base/error.hpp"
 #include "lidbox/standards/observations_csv.hpp"
 #include "lidbox/standards/rule_set.hpp"
-#include "lidbox/standards/standards_report.hpp"
+#include "lidbox/report/standards_tables.hpp"
 
 namespace lidbox::cli {
 

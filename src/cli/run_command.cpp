@@ -56,7 +56,7 @@ void add_run_command(CLI::App& app, int& exit_code) {
     const std::string dir = opt->output_dir.empty() ? c.output_directory : opt->output_dir;
     const auto written = write_output_files(dir, files);
     if (!opt->quiet) {
-      std::cout << files[2].content << "\nWritten:";
+      std::cout << output_named(files, "summary.txt").content << "\nWritten:";
       for (const auto& w : written) std::cout << ' ' << w.string();
       std::cout << '\n';
     }

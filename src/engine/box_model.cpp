@@ -38,6 +38,24 @@ double BudgetTerms::magnitude() const {
          residual_advected_out;
 }
 
+double BoxState::c_total(std::size_t p) const {
+  double t = 0.0;
+  for (std::size_t j = 0; j < parts; ++j) t += c(p, j);
+  return t;
+}
+
+double BoxState::cr_total(std::size_t p) const {
+  double t = 0.0;
+  for (std::size_t j = 0; j < parts; ++j) t += cr(p, j);
+  return t;
+}
+
+double HourResult::mean_total(std::size_t p) const {
+  double t = 0.0;
+  for (std::size_t j = 0; j < parts; ++j) t += mean(p, j);
+  return t;
+}
+
 BoxEngine::BoxEngine(const Footprint& footprint, std::vector<PollutantProcesses> pollutants,
                      std::size_t n_sectors, const EngineOptions& options)
     : footprint_(footprint),
@@ -57,6 +75,7 @@ BoxState BoxEngine::make_state(double mixing_height_m) const {
   BoxState s;
   s.mixing_height_m = std::max(mixing_height_m, options_.min_mixing_height_m);
   s.residual_top_m = s.mixing_height_m;
+  s.parts = parts();
   s.c_g_m3.assign(pollutants() * parts(), 0.0);
   s.cr_g_m3.assign(pollutants() * parts(), 0.0);
   return s;
@@ -64,21 +83,18 @@ BoxState BoxEngine::make_state(double mixing_height_m) const {
 
 HourResult BoxEngine::make_result() const {
   HourResult r;
+  r.parts = parts();
   r.mean_c_g_m3.assign(pollutants() * parts(), 0.0);
   r.budget.assign(pollutants(), BudgetTerms{});
   return r;
 }
 
 double BoxEngine::mixed_mass(const BoxState& s, std::size_t p) const {
-  double m = 0.0;
-  for (std::size_t j = 0; j < parts(); ++j) m += s.c_g_m3[p * parts() + j];
-  return m * s.mixing_height_m;
+  return s.c_total(p) * s.mixing_height_m;
 }
 
 double BoxEngine::residual_mass(const BoxState& s, std::size_t p) const {
-  double m = 0.0;
-  for (std::size_t j = 0; j < parts(); ++j) m += s.cr_g_m3[p * parts() + j];
-  return m * (s.residual_top_m - s.mixing_height_m);
+  return s.cr_total(p) * (s.residual_top_m - s.mixing_height_m);
 }
 
 double BoxEngine::floored_height(double h, HourResult& out) const {
@@ -121,7 +137,7 @@ void BoxEngine::move_lid(BoxState& s, double h_new, const Forcing& F, std::size_
     const double from_free = dh - from_residual;
     const bool emptied = from_residual >= depth;
     for (std::size_t p = 0; p < P; ++p) {
-      const double ca = F.free_troposphere_g_m3[p * F.n_hours + hour];
+      const double ca = F.free_troposphere(p, hour);
       BudgetTerms& b = out.budget[p];
       for (std::size_t j = 0; j < J; ++j) {
         const std::size_t k = p * J + j;
@@ -185,15 +201,14 @@ void BoxEngine::exact_step(BoxState& s, double dt, double f, double fa, const Fo
                            std::size_t hour, int half, HourResult& out) const {
   const std::size_t J = parts();
   const std::size_t P = pollutants();
-  const std::size_t n = F.n_hours;
   const double H = s.mixing_height_m;
   const double D = s.residual_top_m - H;
   const double inv_area = 1.0 / footprint_.area_m2();
   for (std::size_t p = 0; p < P; ++p) {
     const PollutantProcesses& pr = processes_[p];
     BudgetTerms& b = out.budget[p];
-    const double cb = F.background_g_m3[p * n + hour];
-    const double ca = F.free_troposphere_g_m3[p * n + hour];
+    const double cb = F.background(p, hour);
+    const double ca = F.free_troposphere(p, hour);
     // Mixed layer: dC/dt = a_j - lambda C.
     const double lambda = f + pr.loss_rate_per_s + pr.deposition_velocity_m_s / H;
     const Phi ph = phis(lambda * dt, dt);
@@ -206,9 +221,8 @@ void BoxEngine::exact_step(BoxState& s, double dt, double f, double fa, const Fo
         a = f * cb;
       } else if (j >= 2) {
         const std::size_t sec = j - 2;
-        const double q = F.emission_g_s[sec * P + p] *
-                         F.clock_factor[(sec * n + hour) * 2 + static_cast<std::size_t>(half)] *
-                         inv_area;
+        const double q =
+            F.emission(sec, p) * F.clock(sec, hour, static_cast<std::size_t>(half)) * inv_area;
         q_total += q;
         a = q / H;
       }

@@ -8,7 +8,6 @@
 #include <map>
 #include <set>
 
-#include "lidbox/standards/averaging.hpp"
 #include "lidbox/base/error.hpp"
 #include "lidbox/base/text.hpp"
 #include "lidbox/base/units.hpp"
@@ -148,7 +147,7 @@ class TableReader {
     return "1 " + si_unit;
   }
   static void split_quantity(const std::string& text, double& number, std::string& unit) {
-    const std::string s = trim(text);
+    const std::string s(trim(text));
     std::size_t i = 0;
     while (i < s.size() && (std::isdigit(static_cast<unsigned char>(s[i])) || s[i] == '.' ||
                             s[i] == '-' || s[i] == '+' ||
@@ -660,8 +659,8 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
         int k = 0, m = 0;
         const auto colon = spec.find(':');
         const bool ok = parse_whole(spec.substr(0, colon), k) &&
-                        (colon == std::string::npos ? (m = min_valid_count(k), true) : parse_whole(spec.substr(colon + 1), m));
-        if (!ok || k < 1 || m < 1 || m > k || k > 8784) {
+                        (colon == std::string::npos ? (m = 0, true) : parse_whole(spec.substr(colon + 1), m));
+        if (!ok || k < 1 || (colon != std::string::npos && m < 1) || m > k || k > 8784) {
           throw InputError(r.where("rolling"), "\"" + spec + "\"",
                            "\"K\" or \"K:M\": K-hour windows with at least M valid hours, 1 <= M <= K <= 8784");
         }

@@ -19,12 +19,12 @@ double RunResult::total(std::size_t hour, std::size_t p) const {
 double RunResult::closure_g_m2(std::size_t hour, std::size_t p, bool residual_layer) const {
   double lines = 0.0;
   for (std::size_t i = 0; i <= hour; ++i) {
-    const BudgetTerms& b = budget[i * n_pollutants + p];
+    const BudgetTerms& b = budget_of(i, p);
     lines += residual_layer ? b.mixed_layer_change() + b.residual_layer_change() : b.mixed_layer_change();
   }
-  double storage = mixed_mass_g_m2[hour * n_pollutants + p] - initial_mixed_mass_g_m2[p];
+  double storage = mixed_mass(hour, p) - initial_mixed_mass_g_m2[p];
   if (residual_layer) {
-    storage += residual_mass_g_m2[hour * n_pollutants + p] - initial_residual_mass_g_m2[p];
+    storage += residual_mass(hour, p) - initial_residual_mass_g_m2[p];
   }
   return storage - lines;
 }
@@ -32,7 +32,7 @@ double RunResult::closure_g_m2(std::size_t hour, std::size_t p, bool residual_la
 double RunResult::relative_closure(std::size_t p, bool residual_layer) const {
   if (hours.empty()) return 0.0;
   double scale = 0.0;
-  for (std::size_t i = 0; i < hours.size(); ++i) scale += budget[i * n_pollutants + p].magnitude();
+  for (std::size_t i = 0; i < hours.size(); ++i) scale += budget_of(i, p).magnitude();
   const double r = closure_g_m2(hours.size() - 1, p, residual_layer);
   return scale > 0.0 ? std::fabs(r) / scale : 0.0;
 }
@@ -131,8 +131,8 @@ Forcing build_forcing(const CaseSpec& c, const MetSeries& met, std::vector<HourR
         const double v = inst ? 0.5 * (met.wind_v_m_s[i] + met.wind_v_m_s[i + 1]) : met.wind_v_m_s[i];
         cb = ps.background.for_direction(wind_from_deg(u, v));
       }
-      F.background_g_m3[p * n + i] = cb;
-      F.free_troposphere_g_m3[p * n + i] = ps.free_troposphere_g_m3;
+      F.background(p, i) = cb;
+      F.free_troposphere(p, i) = ps.free_troposphere_g_m3;
     }
   }
 
@@ -140,7 +140,7 @@ Forcing build_forcing(const CaseSpec& c, const MetSeries& met, std::vector<HourR
   // hour part-way through each UTC hour.
   F.emission_g_s.assign(S * P, 0.0);
   for (std::size_t s = 0; s < S; ++s) {
-    for (std::size_t p = 0; p < P; ++p) F.emission_g_s[s * P + p] = c.sectors[s].rate_g_s[p];
+    for (std::size_t p = 0; p < P; ++p) F.emission(s, p) = c.sectors[s].rate_g_s[p];
   }
   const int minutes_part = ((c.zone.standard_offset_s() % 3600) + 3600) % 3600;
   F.clock_split_s = minutes_part == 0 ? 0 : 3600 - minutes_part;
@@ -149,8 +149,8 @@ Forcing build_forcing(const CaseSpec& c, const MetSeries& met, std::vector<HourR
     const CivilTime a = c.zone.civil(hours[i].start_utc);
     const CivilTime b = c.zone.civil(hours[i].start_utc + F.clock_split_s);
     for (std::size_t s = 0; s < S; ++s) {
-      F.clock_factor[(s * n + i) * 2] = c.sectors[s].clock.factor(a);
-      F.clock_factor[(s * n + i) * 2 + 1] = c.sectors[s].clock.factor(b);
+      F.clock(s, i, 0) = c.sectors[s].clock.factor(a);
+      F.clock(s, i, 1) = c.sectors[s].clock.factor(b);
     }
   }
   return F;
@@ -175,15 +175,15 @@ Forcing first_day(const Forcing& F, MetReading reading) {
   }
   for (std::size_t p = 0; p < F.n_pollutants; ++p) {
     for (std::size_t i = 0; i < d; ++i) {
-      D.background_g_m3.push_back(F.background_g_m3[p * F.n_hours + i]);
-      D.free_troposphere_g_m3.push_back(F.free_troposphere_g_m3[p * F.n_hours + i]);
+      D.background_g_m3.push_back(F.background(p, i));
+      D.free_troposphere_g_m3.push_back(F.free_troposphere(p, i));
     }
   }
   D.emission_g_s = F.emission_g_s;
   for (std::size_t s = 0; s < F.n_sectors; ++s) {
     for (std::size_t i = 0; i < d; ++i) {
-      D.clock_factor.push_back(F.clock_factor[(s * F.n_hours + i) * 2]);
-      D.clock_factor.push_back(F.clock_factor[(s * F.n_hours + i) * 2 + 1]);
+      D.clock_factor.push_back(F.clock(s, i, 0));
+      D.clock_factor.push_back(F.clock(s, i, 1));
     }
   }
   return D;
@@ -218,8 +218,8 @@ RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& pr
     const Forcing D = first_day(F, c.met.reading);
     // Start from the background in both layers and let the repeated day forget it.
     for (std::size_t p = 0; p < P; ++p) {
-      state.c_g_m3[p * J + 0] = D.background_g_m3[p * 24];
-      state.cr_g_m3[p * J + 0] = D.free_troposphere_g_m3[p * 24];
+      state.c(p, 0) = D.background(p, 0);
+      state.cr(p, 0) = D.free_troposphere(p, 0);
     }
     std::vector<double> previous(P * 24, -1.0), current(P * 24, 0.0);
     R.spin_up_converged = false;
@@ -227,9 +227,7 @@ RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& pr
       for (std::size_t i = 0; i < 24; ++i) {
         engine.step_hour(state, D, i, hr);
         for (std::size_t p = 0; p < P; ++p) {
-          double t = 0.0;
-          for (std::size_t j = 0; j < J; ++j) t += hr.mean_c_g_m3[p * J + j];
-          current[p * 24 + i] = t;
+          current[p * 24 + i] = hr.mean_total(p);
         }
       }
       R.spin_up_days = day;
@@ -256,8 +254,8 @@ RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& pr
   } else {
     for (std::size_t p = 0; p < P; ++p) {
       const PollutantSpec& ps = c.pollutants[p];
-      state.c_g_m3[p * J + 1] = ps.initial_g_m3.value_or(F.background_g_m3[p * n]);
-      state.cr_g_m3[p * J + 1] = ps.initial_residual_g_m3.value_or(0.0);
+      state.c(p, 1) = ps.initial_g_m3.value_or(F.background(p, 0));
+      state.cr(p, 1) = ps.initial_residual_g_m3.value_or(0.0);
     }
   }
 
@@ -288,16 +286,12 @@ RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& pr
     h.substeps = hr.substeps;
     std::copy(hr.mean_c_g_m3.begin(), hr.mean_c_g_m3.end(), R.mean_g_m3.begin() + static_cast<long>(i * P * J));
     for (std::size_t p = 0; p < P; ++p) {
-      double cm = 0.0, cr = 0.0;
-      for (std::size_t j = 0; j < J; ++j) {
-        cm += state.c_g_m3[p * J + j];
-        cr += state.cr_g_m3[p * J + j];
-      }
-      R.end_mixed_g_m3[i * P + p] = cm;
-      R.end_residual_g_m3[i * P + p] = state.residual_top_m > state.mixing_height_m ? cr : 0.0;
-      R.budget[i * P + p] = hr.budget[p];
-      R.mixed_mass_g_m2[i * P + p] = engine.mixed_mass(state, p);
-      R.residual_mass_g_m2[i * P + p] = engine.residual_mass(state, p);
+      const std::size_t k = R.at(i, p);
+      R.end_mixed_g_m3[k] = state.c_total(p);
+      R.end_residual_g_m3[k] = state.residual_top_m > state.mixing_height_m ? state.cr_total(p) : 0.0;
+      R.budget[k] = hr.budget[p];
+      R.mixed_mass_g_m2[k] = engine.mixed_mass(state, p);
+      R.residual_mass_g_m2[k] = engine.residual_mass(state, p);
     }
     if (progress && (i + 1) % report_every == 0) progress(static_cast<double>(i + 1) / static_cast<double>(n), "run");
   }

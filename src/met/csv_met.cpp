@@ -12,7 +12,7 @@
 namespace lidbox {
 
 void split_header(const std::string& header, std::string& name, std::string& unit) {
-  const std::string h = trim(header);
+  const std::string h(trim(header));
   const auto open = h.find('[');
   const auto close = h.rfind(']');
   if (open == std::string::npos || close == std::string::npos || close < open) {
@@ -187,7 +187,7 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
     for (std::size_t c = 0; c < cols.size(); ++c) {
       const Column& col = cols[c];
       if (col.role == Role::time) continue;
-      const std::string cell = trim(cells[c]);
+      const std::string cell(trim(cells[c]));
       double value = nan;
       if (!cell.empty()) {
         if (!parse_double(cell, value)) {

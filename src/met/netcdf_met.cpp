@@ -21,20 +21,8 @@ namespace {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
-std::string lower(std::string_view s) {
-  std::string r(s);
-  for (auto& ch : r) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
-  return r;
-}
-
 std::string quoted(const std::string& s) {
   return "\"" + s + "\"";
-}
-
-std::string join(const std::vector<std::string>& v, const std::string& sep = ", ") {
-  std::string r;
-  for (std::size_t i = 0; i < v.size(); ++i) r += (i ? sep : "") + v[i];
-  return r;
 }
 
 // ---------------------------------------------------------------------------------------------

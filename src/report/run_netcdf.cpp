@@ -166,8 +166,8 @@ CfTable hourly_cf_table(const CaseSpec& c, const RunResult& r) {
     const double k = 1.0 / ps.unit.to_g_m3;
     for (std::size_t i = 0; i < n; ++i) {
       mean.values.push_back(r.total(i, p) * k);
-      end.values.push_back(r.end_mixed_g_m3[i * r.n_pollutants + p] * k);
-      res.values.push_back(r.end_residual_g_m3[i * r.n_pollutants + p] * k);
+      end.values.push_back(r.end_mixed(i, p) * k);
+      res.values.push_back(r.end_residual(i, p) * k);
       for (std::size_t j = 0; j < r.n_parts; ++j) parts[j].values.push_back(r.mean(i, p, j) * k);
     }
     t.vars.push_back(std::move(mean));
@@ -213,7 +213,7 @@ CfTable budget_cf_table(const CaseSpec& c, const RunResult& r) {
       CfVariable v = var(P + "_" + line.name, "",
                          name + " " + line.long_name + ", over the footprint", "g h-1", kHourMean);
       for (std::size_t i = 0; i < n; ++i) {
-        v.values.push_back(r.budget[i * r.n_pollutants + p].*(line.member) * A);
+        v.values.push_back(r.budget_of(i, p).*(line.member) * A);
       }
       t.vars.push_back(std::move(v));
     }
@@ -225,8 +225,8 @@ CfTable budget_cf_table(const CaseSpec& c, const RunResult& r) {
             name + " storage change minus the sum of the lines since the start", "g", "");
     mm.comment = rm.comment = cl.comment = kAtEnd;
     for (std::size_t i = 0; i < n; ++i) {
-      mm.values.push_back(r.mixed_mass_g_m2[i * r.n_pollutants + p] * A);
-      rm.values.push_back(r.residual_mass_g_m2[i * r.n_pollutants + p] * A);
+      mm.values.push_back(r.mixed_mass(i, p) * A);
+      rm.values.push_back(r.residual_mass(i, p) * A);
       cl.values.push_back(r.closure_g_m2(i, p, rl) * A);
     }
     t.vars.push_back(std::move(mm));

@@ -52,8 +52,8 @@ std::string render_hourly_csv(const CaseSpec& c, const RunResult& r) {
     for (std::size_t p = 0; p < r.n_pollutants; ++p) {
       const PollutantSpec& ps = c.pollutants[p];
       o << ',' << format_number(in_unit(ps, r.total(i, p))) << ','
-        << format_number(in_unit(ps, r.end_mixed_g_m3[i * r.n_pollutants + p])) << ','
-        << format_number(in_unit(ps, r.end_residual_g_m3[i * r.n_pollutants + p]));
+        << format_number(in_unit(ps, r.end_mixed(i, p))) << ','
+        << format_number(in_unit(ps, r.end_residual(i, p)));
       for (std::size_t j = 0; j < r.n_parts; ++j) o << ',' << format_number(in_unit(ps, r.mean(i, p, j)));
     }
     o << '\n';
@@ -72,13 +72,13 @@ std::string render_budget_csv(const CaseSpec& c, const RunResult& r) {
        "cumulative_closure [g]\n";
   for (std::size_t i = 0; i < r.hours.size(); ++i) {
     for (std::size_t p = 0; p < r.n_pollutants; ++p) {
-      const BudgetTerms& b = r.budget[i * r.n_pollutants + p];
+      const BudgetTerms& b = r.budget_of(i, p);
       o << format_utc(r.hours[i].start_utc) << ',' << c.pollutants[p].name;
       for (double v : {b.emitted, b.advected_in, b.advected_out, b.reacted, b.deposited,
                        b.entrained_from_residual, b.entrained_from_free_troposphere, b.detrained,
                        b.residual_reacted, b.residual_advected_in, b.residual_advected_out,
-                       r.mixed_mass_g_m2[i * r.n_pollutants + p],
-                       r.residual_mass_g_m2[i * r.n_pollutants + p]}) {
+                       r.mixed_mass(i, p),
+                       r.residual_mass(i, p)}) {
         o << ',' << format_number(v * A, 10);
       }
       char buf[32];

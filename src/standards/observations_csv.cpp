@@ -16,17 +16,10 @@ namespace lidbox {
 
 namespace {
 
-std::string_view trim_view(std::string_view s) {
-  while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
-  while (!s.empty() && (s.back() == ' ' || s.back() == '\t' || s.back() == '\r'))
-    s.remove_suffix(1);
-  return s;
-}
-
 // The met reader's CSV splitter (RFC 4180 quotes), each cell trimmed.
 std::vector<std::string> split_cells(std::string_view line) {
   std::vector<std::string> cells = split_csv_row(std::string(line));
-  for (auto& c : cells) c = std::string(trim_view(c));
+  for (auto& c : cells) c = std::string(trim(c));
   return cells;
 }
 
@@ -34,7 +27,7 @@ std::vector<std::string> split_cells(std::string_view line) {
 
 int parse_utc_offset_s(std::string_view text, std::string_view where) {
   // Local standard time is the zone's standard offset, also for a zone with daylight saving.
-  return TimeZone::parse(trim_view(text), where).standard_offset_s();
+  return TimeZone::parse(trim(text), where).standard_offset_s();
 }
 
 UtcSeconds parse_instant_with_offset(std::string_view text, std::string_view where) {
@@ -64,7 +57,7 @@ Observations parse_observations_csv(std::string_view text, std::string_view path
         text.substr(pos, nl == std::string_view::npos ? text.size() - pos : nl - pos);
     pos = nl == std::string_view::npos ? text.size() + 1 : nl + 1;
     ++line_no;
-    const std::string_view line = trim_view(raw);
+    const std::string_view line = trim(raw);
     if (line.empty() || line.front() == '#') continue;
     const std::string where = path + ":" + std::to_string(line_no);
     const auto cells = split_cells(line);
@@ -83,8 +76,8 @@ Observations parse_observations_csv(std::string_view text, std::string_view path
                            "header \"" + std::string(cell) + "\" has no unit",
                            "\"<pollutant> [<unit>]\", e.g. \"PM2.5 [ug/m3]\"");
         }
-        const std::string name(trim_view(cell.substr(0, open)));
-        const std::string unit_text(trim_view(cell.substr(open + 1, close - open - 1)));
+        const std::string name(trim(cell.substr(0, open)));
+        const std::string unit_text(trim(cell.substr(open + 1, close - open - 1)));
         const std::string col_where = where + ": column \"" + std::string(cell) + "\"";
         const PollutantInfo& p = pollutant_or_throw(name, col_where);
         const auto unit = parse_concentration_unit(unit_text, p.molar_mass_g_mol,

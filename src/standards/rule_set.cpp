@@ -87,12 +87,6 @@ std::vector<std::string> names_of(const E (&all)[N]) {
   return out;
 }
 
-std::string join(const std::vector<std::string>& v) {
-  std::string out;
-  for (const auto& s : v) out += (out.empty() ? "" : ", ") + s;
-  return out;
-}
-
 // One TOML table being read: remembers which keys were used so leftovers can be reported.
 class TableReader {
  public:

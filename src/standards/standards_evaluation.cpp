@@ -74,11 +74,13 @@ struct Cache {
         dv = daily_max_1h(s, off, required);
         break;
       case StatisticKind::daily_max_8h_17_windows:
-        dv = daily_max_of_windows(eight_hour(p, s), off, {7, 17, required});
+        dv = daily_max_of_windows(eight_hour(p, s), off, kUsOzoneDayWindows.requiring(required));
+        break;
+      case StatisticKind::daily_max_8h_24_windows:
+        dv = daily_max_of_windows(eight_hour(p, s), off, kEuDayWindows.requiring(required));
         break;
       default:
-        dv = daily_max_of_windows(eight_hour(p, s), off, {-7, 24, required});
-        break;
+        throw InternalError(std::string("statistic ") + to_string(k) + " is not a daily statistic");
     }
     return daily.emplace(key, std::move(dv)).first->second;
   }

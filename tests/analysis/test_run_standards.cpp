@@ -51,7 +51,7 @@ MetSeries steady_met(std::size_t n) {
 TEST_CASE("a run's hour means are judged by the rule sets its case names") {
   const CaseSpec c = parse_case(kSteady, "steady.toml", ".");
   REQUIRE(c.standards.has_value());
-  CHECK(c.standards->rolling_h == std::vector<std::pair<int, int>>{{8, 6}, {3, 3}});
+  CHECK(c.standards->rolling_h == std::vector<std::pair<int, int>>{{8, 6}, {3, 0}});  // 0: the 75 % default
   const RunResult r = run_case(c, steady_met(72));
   std::vector<std::string> skipped;
   const NamedSeries series = run_series(c, r, &skipped);
@@ -79,6 +79,8 @@ TEST_CASE("a run's hour means are judged by the rule sets its case names") {
   CHECK(who);
   REQUIRE(report->rolling.size() == 2);
   CHECK(report->rolling[0].means.mean[20] == doctest::Approx(40.0).epsilon(1e-6));
+  // "3" alone means the default 75 %: ceil(0.75 * 3) = 3 valid hours (averaging.hpp).
+  CHECK(report->rolling[1].means.min_valid_h == 3);
   const std::string text = standards_summary(*report);
   // WHO 2021 interim targets 3 and 4 (37.5 and 25 ug/m3) are below 40 too; IT-1 and IT-2 are not.
   CHECK(text.find("who-2021: 0 exceeded, 0 within, 10 incomplete for the year; values above a level: "

@@ -8,7 +8,7 @@
 #include <random>
 
 #include "lidbox/standards/rule_set.hpp"
-#include "lidbox/standards/standards_report.hpp"
+#include "lidbox/report/standards_tables.hpp"
 
 using namespace lidbox;
 

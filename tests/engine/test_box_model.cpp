@@ -334,7 +334,7 @@ TEST_CASE("random scenarios: budgets close, concentrations stay non-negative, pa
       Mp.clock_factor.assign(Mp.n_sectors * F.n_hours * 2, 0.0);
       for (std::size_t sec = 0; sec < F.n_sectors; ++sec) {
         for (std::size_t i = 0; i < F.n_hours * 2; ++i) {
-          Mp.clock_factor[i] += F.emission_g_s[sec * F.n_pollutants + p] * F.clock_factor[sec * F.n_hours * 2 + i];
+          Mp.clock_factor[i] += F.emission(sec, p) * F.clock_factor[sec * F.n_hours * 2 + i];
         }
       }
       BoxEngine ep(sc.fp, {sc.pollutants[p]}, Mp.n_sectors, sc.opt);
@@ -363,9 +363,9 @@ TEST_CASE("random scenarios: budgets close, concentrations stay non-negative, pa
         sum[p] += r.budget[p];
         double parts = 0.0;
         for (std::size_t j = 0; j < engine.parts(); ++j) {
-          const double c = r.mean_c_g_m3[p * engine.parts() + j];
-          ok_nonneg = ok_nonneg && c >= 0.0 && s.c_g_m3[p * engine.parts() + j] >= 0.0 &&
-                      s.cr_g_m3[p * engine.parts() + j] >= 0.0;
+          const double c = r.mean(p, j);
+          ok_nonneg = ok_nonneg && c >= 0.0 && s.c(p, j) >= 0.0 &&
+                      s.cr(p, j) >= 0.0;
           parts += c;
         }
         const double merged = merged_total[p * F.n_hours + i];

@@ -82,10 +82,10 @@ TEST_CASE("a zone half an hour off the UTC hours splits each hour at the local h
   std::vector<HourRecord> hours;
   const Forcing F = build_forcing(c, flat_met(parse_iso8601("2026-01-05T00:00Z", nullptr, "t"), 30), hours);
   CHECK(F.clock_split_s == 1800);
-  CHECK(F.clock_factor[2 * 2 + 0] == 0.0);
-  CHECK(F.clock_factor[2 * 2 + 1] == doctest::Approx(24.0));
-  CHECK(F.clock_factor[3 * 2 + 0] == doctest::Approx(24.0));
-  CHECK(F.clock_factor[3 * 2 + 1] == 0.0);
+  CHECK(F.clock(0, 2, 0) == 0.0);
+  CHECK(F.clock(0, 2, 1) == doctest::Approx(24.0));
+  CHECK(F.clock(0, 3, 0) == doctest::Approx(24.0));
+  CHECK(F.clock(0, 3, 1) == 0.0);
   // And the run still closes its budget with the split hours.
   const RunResult r = run_case(c, flat_met(parse_iso8601("2026-01-05T00:00Z", nullptr, "t"), 30));
   CHECK(r.relative_closure(0, true) < 1e-12);

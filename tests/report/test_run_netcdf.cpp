@@ -110,7 +110,7 @@ TEST_CASE("the budget table closes as the run's budget does and renders to reada
   const double A = 10000.0 * 8000.0;  // footprint [m2]
   // Emitted PM2.5 over the footprint: 10 kg/h = 10000 g/h (case file) in every hour.
   CHECK(nc_value(dir + "/budget.nc", "PM25_emitted", 20) ==
-        doctest::Approx(r.budget[20 * 2 + 1].emitted * A));
+        doctest::Approx(r.budget_of(20, 1).emitted * A));
   CHECK(nc_value(dir + "/budget.nc", "PM25_emitted", 20) == doctest::Approx(10000.0).epsilon(1e-9));
   CHECK(nc_value(dir + "/budget.nc", "CO_cumulative_closure", 47) ==
         doctest::Approx(r.closure_g_m2(47, 0, c.engine.residual_layer) * A));

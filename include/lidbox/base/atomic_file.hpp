@@ -18,6 +18,9 @@ struct OutputFile {
   std::string content;
 };
 
+// The file of a set with this name; InternalError when the set has none (a renderer's bug).
+const OutputFile& output_named(const std::vector<OutputFile>& files, std::string_view name);
+
 // Writes a set of rendered files into `dir` (write_files_atomically) and returns their paths.
 std::vector<std::filesystem::path> write_output_files(const std::filesystem::path& dir,
                                                       const std::vector<OutputFile>& files);

@@ -8,7 +8,12 @@
 
 namespace lidbox {
 
-std::string trim(std::string_view s);
+// Blanks (space, tab, CR, LF, VT, FF) removed at both ends; a view into `s`.
+std::string_view trim(std::string_view s);
+// ASCII lower case (names, units and attribute values are ASCII; other bytes pass unchanged).
+std::string lower(std::string_view s);
+// "a, b, c" (or with another separator).
+std::string join(const std::vector<std::string>& items, std::string_view separator = ", ");
 // Splits into lines, accepting \n and \r\n.
 std::vector<std::string> split_lines(const std::string& text);
 // One CSV row (RFC 4180): comma-separated, double quotes around fields that hold commas.

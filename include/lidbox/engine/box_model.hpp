@@ -92,13 +92,39 @@ struct Forcing {
   int clock_split_s = 0;
 
   [[nodiscard]] std::size_t met_values() const { return mixing_height_m.size(); }
+  // Element access in the layouts above.
+  [[nodiscard]] double& background(std::size_t p, std::size_t i) { return background_g_m3[p * n_hours + i]; }
+  [[nodiscard]] double background(std::size_t p, std::size_t i) const { return background_g_m3[p * n_hours + i]; }
+  [[nodiscard]] double& free_troposphere(std::size_t p, std::size_t i) {
+    return free_troposphere_g_m3[p * n_hours + i];
+  }
+  [[nodiscard]] double free_troposphere(std::size_t p, std::size_t i) const {
+    return free_troposphere_g_m3[p * n_hours + i];
+  }
+  [[nodiscard]] double& emission(std::size_t s, std::size_t p) { return emission_g_s[s * n_pollutants + p]; }
+  [[nodiscard]] double emission(std::size_t s, std::size_t p) const { return emission_g_s[s * n_pollutants + p]; }
+  [[nodiscard]] double& clock(std::size_t s, std::size_t i, std::size_t half) {
+    return clock_factor[(s * n_hours + i) * 2 + half];
+  }
+  [[nodiscard]] double clock(std::size_t s, std::size_t i, std::size_t half) const {
+    return clock_factor[(s * n_hours + i) * 2 + half];
+  }
 };
 
 struct BoxState {
   double mixing_height_m = 0.0;
   double residual_top_m = 0.0;  // >= mixing_height_m
+  std::size_t parts = 0;        // linear parts per pollutant (BoxEngine::parts())
   std::vector<double> c_g_m3;   // [p * parts + j], mixed layer
   std::vector<double> cr_g_m3;  // [p * parts + j], residual layer
+
+  [[nodiscard]] double& c(std::size_t p, std::size_t j) { return c_g_m3[p * parts + j]; }
+  [[nodiscard]] double c(std::size_t p, std::size_t j) const { return c_g_m3[p * parts + j]; }
+  [[nodiscard]] double& cr(std::size_t p, std::size_t j) { return cr_g_m3[p * parts + j]; }
+  [[nodiscard]] double cr(std::size_t p, std::size_t j) const { return cr_g_m3[p * parts + j]; }
+  // Sum of the parts of pollutant p in the mixed and residual layers [g m-3].
+  [[nodiscard]] double c_total(std::size_t p) const;
+  [[nodiscard]] double cr_total(std::size_t p) const;
 };
 
 // Budget lines of one pollutant over an interval [g m-2 of footprint]; the signs are in the
@@ -127,6 +153,7 @@ struct BudgetTerms {
 
 // What one hour produced. Sized once by BoxEngine::make_result and reused.
 struct HourResult {
+  std::size_t parts = 0;
   std::vector<double> mean_c_g_m3;  // [p * parts + j]: hour mean, int C dt / 3600
   std::vector<BudgetTerms> budget;  // [p]
   double mixing_height_mean_m = 0.0;
@@ -138,6 +165,9 @@ struct HourResult {
   bool calm_floor = false;
   bool lid_floor = false;
   int substeps = 0;
+
+  [[nodiscard]] double mean(std::size_t p, std::size_t j) const { return mean_c_g_m3[p * parts + j]; }
+  [[nodiscard]] double mean_total(std::size_t p) const;
 };
 
 class BoxEngine {

@@ -73,7 +73,8 @@ struct StandardsSpec {
   bool aqi = true;
   bool aqhi = true;
   std::optional<UtcSeconds> issue_time_utc;    // forecast issue time, for episode lead times
-  std::vector<std::pair<int, int>> rolling_h;  // extra running-mean tables: (window, min valid)
+  std::vector<std::pair<int, int>> rolling_h;  // extra running-mean tables: (window, min valid;
+                                               // 0 = the standards' 75 % default)
 };
 
 struct CaseSpec {

@@ -53,6 +53,16 @@ struct RunResult {
   [[nodiscard]] double mean(std::size_t hour, std::size_t p, std::size_t part) const {
     return mean_g_m3[(hour * n_pollutants + p) * n_parts + part];
   }
+  [[nodiscard]] std::size_t at(std::size_t hour, std::size_t p) const { return hour * n_pollutants + p; }
+  [[nodiscard]] const BudgetTerms& budget_of(std::size_t hour, std::size_t p) const { return budget[at(hour, p)]; }
+  [[nodiscard]] double mixed_mass(std::size_t hour, std::size_t p) const { return mixed_mass_g_m2[at(hour, p)]; }
+  [[nodiscard]] double residual_mass(std::size_t hour, std::size_t p) const {
+    return residual_mass_g_m2[at(hour, p)];
+  }
+  [[nodiscard]] double end_mixed(std::size_t hour, std::size_t p) const { return end_mixed_g_m3[at(hour, p)]; }
+  [[nodiscard]] double end_residual(std::size_t hour, std::size_t p) const {
+    return end_residual_g_m3[at(hour, p)];
+  }
   [[nodiscard]] double total(std::size_t hour, std::size_t p) const;
   // Cumulative closure residual up to the end of `hour` [g m-2]: storage change minus the sum of
   // the lines, and its size relative to the summed absolute lines.

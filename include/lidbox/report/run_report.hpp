@@ -8,7 +8,7 @@
 #include "lidbox/base/atomic_file.hpp"
 #include "lidbox/engine/case_file.hpp"
 #include "lidbox/engine/run.hpp"
-#include "lidbox/standards/standards_report.hpp"
+#include "lidbox/report/standards_tables.hpp"
 #include "lidbox/base/text.hpp"
 
 namespace lidbox {

@@ -117,6 +117,11 @@ struct DailyWindowRule {
   int first_start_hour = 0;
   int window_count = 24;
   int min_valid_windows = 18;
+
+  // The same windows with another completeness requirement (a rule file's own fraction).
+  [[nodiscard]] constexpr DailyWindowRule requiring(int min_valid) const {
+    return {first_start_hour, window_count, min_valid};
+  }
 };
 
 // US ozone, 40 CFR 50 Appendix U (2015): 17 windows starting 07:00 .. 23:00, the last ending at

@@ -7,7 +7,7 @@
 #include "lidbox/base/atomic_file.hpp"
 #include "lidbox/base/caution.hpp"
 #include "lidbox/base/error.hpp"
-#include "lidbox/standards/standards_report.hpp"
+#include "lidbox/report/standards_tables.hpp"
 
 using namespace lidbox;
 
