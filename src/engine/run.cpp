@@ -60,65 +60,43 @@ MetSeries read_case_met(const CaseSpec& c) {
 
 namespace {
 
-// Value of a met column for one hour, converted to g/m3 for pollutant p.
+// The met column a background names, and its unit's factor to g/m3 for pollutant `ps`.
 struct ColumnLookup {
   const MetColumn* column = nullptr;
   double to_g_m3 = 1.0;
 };
 
-}  // namespace
-
-Forcing build_forcing(const CaseSpec& c, const MetSeries& met, std::vector<HourRecord>& hours) {
-  const bool inst = c.met.reading == MetReading::instantaneous;
-  const std::size_t n_stamps = met.size();
-  if (n_stamps < 2) throw InputError(met.source, "fewer than two hours of met", "at least two hours");
-  const std::size_t n = inst ? n_stamps - 1 : n_stamps;
-  const std::size_t P = c.pollutants.size();
-  const std::size_t S = c.sectors.size();
-  Forcing F;
-  F.n_hours = n;
-  F.n_pollutants = P;
-  F.n_sectors = S;
-  F.mixing_height_m = met.mixing_height_m;
-  F.wind_u_m_s = met.wind_u_m_s;
-  F.wind_v_m_s = met.wind_v_m_s;
-  // Hour i starts at stamp i, except for hour averages stamped at the end of their hour.
-  const UtcSeconds first_start =
-      met.first_stamp_utc - (!inst && c.met.hour_label == HourLabel::period_end ? kSecondsPerHour : 0);
-
-  hours.assign(n, HourRecord{});
-  for (std::size_t i = 0; i < n; ++i) {
-    HourRecord& h = hours[i];
-    h.start_utc = first_start + static_cast<UtcSeconds>(i) * kSecondsPerHour;
-    h.civil_offset_s = c.zone.civil_offset_s(h.start_utc);
-    h.filled = inst ? (met.filled[i] || met.filled[i + 1]) : met.filled[i] != 0;
+ColumnLookup background_column(const PollutantSpec& ps, const MetSeries& met) {
+  ColumnLookup col;
+  col.column = met.find_extra(ps.background.column);
+  if (!col.column) {
+    std::vector<std::string> names;
+    for (const auto& e : met.extra) names.push_back(e.name);
+    throw InputError(met.source,
+                     "no column \"" + ps.background.column + "\" for the background of " + ps.name +
+                         " (other columns: " + (names.empty() ? "none" : join(names)) + ")",
+                     "a column \"" + ps.background.column + " [unit]\"");
   }
+  col.to_g_m3 = parse_concentration_unit(
+                    col.column->unit, ps.molar_mass_g_mol, ps.reference,
+                    met.source + ": column \"" + col.column->name + " [" + col.column->unit + "]\"")
+                    .to_g_m3;
+  return col;
+}
 
-  // Background and free troposphere per pollutant per hour.
-  F.background_g_m3.assign(P * n, 0.0);
-  F.free_troposphere_g_m3.assign(P * n, 0.0);
-  for (std::size_t p = 0; p < P; ++p) {
+// Background of the inflowing air and free-troposphere air, per pollutant and hour. With
+// instantaneous readings an hour takes the mean of its two end stamps.
+void fill_backgrounds(const CaseSpec& c, const MetSeries& met, bool inst, Forcing& F) {
+  const std::size_t n = F.n_hours;
+  F.background_g_m3.assign(F.n_pollutants * n, 0.0);
+  F.free_troposphere_g_m3.assign(F.n_pollutants * n, 0.0);
+  for (std::size_t p = 0; p < F.n_pollutants; ++p) {
     const PollutantSpec& ps = c.pollutants[p];
-    ColumnLookup col;
-    if (ps.background.kind == BackgroundSpec::Kind::column) {
-      col.column = met.find_extra(ps.background.column);
-      if (!col.column) {
-        std::vector<std::string> names;
-        for (const auto& e : met.extra) names.push_back(e.name);
-        std::string list;
-        for (const auto& nm : names) list += (list.empty() ? "" : ", ") + nm;
-        throw InputError(met.source, "no column \"" + ps.background.column + "\" for the background of " +
-                                         ps.name + " (other columns: " + (list.empty() ? "none" : list) + ")",
-                         "a column \"" + ps.background.column + " [unit]\"");
-      }
-      col.to_g_m3 = parse_concentration_unit(col.column->unit, ps.molar_mass_g_mol, ps.reference,
-                                             met.source + ": column \"" + col.column->name + " [" +
-                                                 col.column->unit + "]\"")
-                        .to_g_m3;
-    }
+    const bool by_column = ps.background.kind == BackgroundSpec::Kind::column;
+    const ColumnLookup col = by_column ? background_column(ps, met) : ColumnLookup{};
     for (std::size_t i = 0; i < n; ++i) {
       double cb = ps.background.value_g_m3;
-      if (ps.background.kind == BackgroundSpec::Kind::column) {
+      if (by_column) {
         const auto& v = col.column->values;
         const double raw = inst ? 0.5 * (v[i] + v[i + 1]) : v[i];
         if (raw < 0.0) {
@@ -135,17 +113,20 @@ Forcing build_forcing(const CaseSpec& c, const MetSeries& met, std::vector<HourR
       F.free_troposphere(p, i) = ps.free_troposphere_g_m3;
     }
   }
+}
 
-  // Emissions and clocks. A zone whose offset is not a whole number of hours changes its local
-  // hour part-way through each UTC hour.
-  F.emission_g_s.assign(S * P, 0.0);
+// Emission rates and clock factors. A zone whose offset is not a whole number of hours changes
+// its local hour part-way through each UTC hour, so each hour has two clock halves.
+void fill_emissions(const CaseSpec& c, const std::vector<HourRecord>& hours, Forcing& F) {
+  const std::size_t S = F.n_sectors;
+  F.emission_g_s.assign(S * F.n_pollutants, 0.0);
   for (std::size_t s = 0; s < S; ++s) {
-    for (std::size_t p = 0; p < P; ++p) F.emission(s, p) = c.sectors[s].rate_g_s[p];
+    for (std::size_t p = 0; p < F.n_pollutants; ++p) F.emission(s, p) = c.sectors[s].rate_g_s[p];
   }
   const int minutes_part = ((c.zone.standard_offset_s() % 3600) + 3600) % 3600;
   F.clock_split_s = minutes_part == 0 ? 0 : 3600 - minutes_part;
-  F.clock_factor.assign(S * n * 2, 0.0);
-  for (std::size_t i = 0; i < n; ++i) {
+  F.clock_factor.assign(S * F.n_hours * 2, 0.0);
+  for (std::size_t i = 0; i < F.n_hours; ++i) {
     const CivilTime a = c.zone.civil(hours[i].start_utc);
     const CivilTime b = c.zone.civil(hours[i].start_utc + F.clock_split_s);
     for (std::size_t s = 0; s < S; ++s) {
@@ -153,6 +134,34 @@ Forcing build_forcing(const CaseSpec& c, const MetSeries& met, std::vector<HourR
       F.clock(s, i, 1) = c.sectors[s].clock.factor(b);
     }
   }
+}
+
+}  // namespace
+
+Forcing build_forcing(const CaseSpec& c, const MetSeries& met, std::vector<HourRecord>& hours) {
+  const bool inst = c.met.reading == MetReading::instantaneous;
+  const std::size_t n_stamps = met.size();
+  if (n_stamps < 2) throw InputError(met.source, "fewer than two hours of met", "at least two hours");
+  const std::size_t n = inst ? n_stamps - 1 : n_stamps;
+  Forcing F;
+  F.n_hours = n;
+  F.n_pollutants = c.pollutants.size();
+  F.n_sectors = c.sectors.size();
+  F.mixing_height_m = met.mixing_height_m;
+  F.wind_u_m_s = met.wind_u_m_s;
+  F.wind_v_m_s = met.wind_v_m_s;
+  // Hour i starts at stamp i, except for hour averages stamped at the end of their hour.
+  const UtcSeconds first_start =
+      met.first_stamp_utc - (!inst && c.met.hour_label == HourLabel::period_end ? kSecondsPerHour : 0);
+  hours.assign(n, HourRecord{});
+  for (std::size_t i = 0; i < n; ++i) {
+    HourRecord& h = hours[i];
+    h.start_utc = first_start + static_cast<UtcSeconds>(i) * kSecondsPerHour;
+    h.civil_offset_s = c.zone.civil_offset_s(h.start_utc);
+    h.filled = inst ? (met.filled[i] || met.filled[i + 1]) : met.filled[i] != 0;
+  }
+  fill_backgrounds(c, met, inst, F);
+  fill_emissions(c, hours, F);
   return F;
 }
 
@@ -197,68 +206,62 @@ std::vector<PollutantProcesses> processes_of(const CaseSpec& c) {
 
 }  // namespace
 
-RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& progress) {
-  RunResult R;
-  Forcing F = build_forcing(c, met, R.hours);
-  const std::size_t n = F.n_hours;
+namespace {
+
+// Repeats the first day until the day's hour means change by less than the case's tolerance
+// (physics note section 9), from the background in both layers.
+void spin_up(const CaseSpec& c, const MetSeries& met, const Forcing& F, const BoxEngine& engine,
+             BoxState& state, HourResult& hr, RunResult& R, const ProgressFn& progress) {
   const std::size_t P = F.n_pollutants;
-  BoxEngine engine(c.footprint, processes_of(c), F.n_sectors, c.engine);
-  const std::size_t J = engine.parts();
-  R.n_pollutants = P;
-  R.n_parts = J;
-  R.clock_split_s = F.clock_split_s;
-  HourResult hr = engine.make_result();
-
-  BoxState state = engine.make_state(F.mixing_height_m[0]);
-  if (c.spin_up == SpinUp::repeat_first_day) {
-    if (n < 24) {
-      throw InputError(met.source, std::to_string(n) + " hours of met, too few to repeat a first day",
-                       "at least 24 hours, or spin_up = \"none\" in [model]");
-    }
-    const Forcing D = first_day(F, c.met.reading);
-    // Start from the background in both layers and let the repeated day forget it.
-    for (std::size_t p = 0; p < P; ++p) {
-      state.c(p, 0) = D.background(p, 0);
-      state.cr(p, 0) = D.free_troposphere(p, 0);
-    }
-    std::vector<double> previous(P * 24, -1.0), current(P * 24, 0.0);
-    R.spin_up_converged = false;
-    for (int day = 1; day <= c.spin_up_max_days; ++day) {
-      for (std::size_t i = 0; i < 24; ++i) {
-        engine.step_hour(state, D, i, hr);
-        for (std::size_t p = 0; p < P; ++p) {
-          current[p * 24 + i] = hr.mean_total(p);
-        }
-      }
-      R.spin_up_days = day;
-      if (day > 1) {
-        // Largest change of an hour mean, relative to the day's peak of that pollutant.
-        double change = 0.0;
-        for (std::size_t p = 0; p < P; ++p) {
-          double peak = 0.0, diff = 0.0;
-          for (std::size_t i = 0; i < 24; ++i) {
-            peak = std::max(peak, std::fabs(previous[p * 24 + i]));
-            diff = std::max(diff, std::fabs(current[p * 24 + i] - previous[p * 24 + i]));
-          }
-          change = std::max(change, peak > 0.0 ? diff / peak : 0.0);
-        }
-        R.spin_up_last_change = change;
-        if (change < c.spin_up_tolerance) {
-          R.spin_up_converged = true;
-          break;
-        }
-      }
-      previous = current;
-      if (progress) progress(static_cast<double>(day) / c.spin_up_max_days, "spin-up");
-    }
-  } else {
-    for (std::size_t p = 0; p < P; ++p) {
-      const PollutantSpec& ps = c.pollutants[p];
-      state.c(p, 1) = ps.initial_g_m3.value_or(F.background(p, 0));
-      state.cr(p, 1) = ps.initial_residual_g_m3.value_or(0.0);
-    }
+  if (F.n_hours < 24) {
+    throw InputError(met.source, std::to_string(F.n_hours) + " hours of met, too few to repeat a first day",
+                     "at least 24 hours, or spin_up = \"none\" in [model]");
   }
+  const Forcing D = first_day(F, c.met.reading);
+  for (std::size_t p = 0; p < P; ++p) {
+    state.c(p, 0) = D.background(p, 0);
+    state.cr(p, 0) = D.free_troposphere(p, 0);
+  }
+  std::vector<double> previous(P * 24, -1.0), current(P * 24, 0.0);
+  R.spin_up_converged = false;
+  for (int day = 1; day <= c.spin_up_max_days; ++day) {
+    for (std::size_t i = 0; i < 24; ++i) {
+      engine.step_hour(state, D, i, hr);
+      for (std::size_t p = 0; p < P; ++p) current[p * 24 + i] = hr.mean_total(p);
+    }
+    R.spin_up_days = day;
+    if (day > 1) {
+      // Largest change of an hour mean, relative to the day's peak of that pollutant.
+      double change = 0.0;
+      for (std::size_t p = 0; p < P; ++p) {
+        double peak = 0.0, diff = 0.0;
+        for (std::size_t i = 0; i < 24; ++i) {
+          peak = std::max(peak, std::fabs(previous[p * 24 + i]));
+          diff = std::max(diff, std::fabs(current[p * 24 + i] - previous[p * 24 + i]));
+        }
+        change = std::max(change, peak > 0.0 ? diff / peak : 0.0);
+      }
+      R.spin_up_last_change = change;
+      if (change < c.spin_up_tolerance) {
+        R.spin_up_converged = true;
+        return;
+      }
+    }
+    previous = current;
+    if (progress) progress(static_cast<double>(day) / c.spin_up_max_days, "spin-up");
+  }
+}
 
+// The case's start values in the "initial" part (spin_up = "none").
+void set_initial_state(const CaseSpec& c, const Forcing& F, BoxState& state) {
+  for (std::size_t p = 0; p < F.n_pollutants; ++p) {
+    const PollutantSpec& ps = c.pollutants[p];
+    state.c(p, 1) = ps.initial_g_m3.value_or(F.background(p, 0));
+    state.cr(p, 1) = ps.initial_residual_g_m3.value_or(0.0);
+  }
+}
+
+void allocate(RunResult& R, std::size_t n, std::size_t P, std::size_t J) {
   R.mean_g_m3.assign(n * P * J, 0.0);
   R.end_mixed_g_m3.assign(n * P, 0.0);
   R.end_residual_g_m3.assign(n * P, 0.0);
@@ -267,6 +270,53 @@ RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& pr
   R.residual_mass_g_m2.assign(n * P, 0.0);
   R.initial_mixed_mass_g_m2.assign(P, 0.0);
   R.initial_residual_mass_g_m2.assign(P, 0.0);
+}
+
+// Keeps what hour i produced: met used, flags, hour means by part, end values, budget, masses.
+void record_hour(std::size_t i, const BoxEngine& engine, const BoxState& state, const HourResult& hr,
+                 RunResult& R) {
+  HourRecord& h = R.hours[i];
+  h.mixing_height_m = hr.mixing_height_mean_m;
+  h.wind_speed_m_s = hr.wind_speed_mean_m_s;
+  h.wind_from_deg = wind_from_deg(hr.wind_u_mean_m_s, hr.wind_v_mean_m_s);
+  h.ventilation_m2_s = hr.ventilation_mean_m2_s;
+  h.flushing_time_h = 1.0 / hr.flushing_rate_mean_per_s / 3600.0;
+  h.residual_top_m = state.residual_top_m;
+  h.calm_floor = hr.calm_floor;
+  h.lid_floor = hr.lid_floor;
+  h.substeps = hr.substeps;
+  const std::size_t block = R.n_pollutants * R.n_parts;
+  std::copy(hr.mean_c_g_m3.begin(), hr.mean_c_g_m3.end(), R.mean_g_m3.begin() + static_cast<long>(i * block));
+  for (std::size_t p = 0; p < R.n_pollutants; ++p) {
+    const std::size_t k = R.at(i, p);
+    R.end_mixed_g_m3[k] = state.c_total(p);
+    R.end_residual_g_m3[k] = state.residual_top_m > state.mixing_height_m ? state.cr_total(p) : 0.0;
+    R.budget[k] = hr.budget[p];
+    R.mixed_mass_g_m2[k] = engine.mixed_mass(state, p);
+    R.residual_mass_g_m2[k] = engine.residual_mass(state, p);
+  }
+}
+
+}  // namespace
+
+RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& progress) {
+  RunResult R;
+  Forcing F = build_forcing(c, met, R.hours);
+  const std::size_t n = F.n_hours;
+  const std::size_t P = F.n_pollutants;
+  BoxEngine engine(c.footprint, processes_of(c), F.n_sectors, c.engine);
+  R.n_pollutants = P;
+  R.n_parts = engine.parts();
+  R.clock_split_s = F.clock_split_s;
+  HourResult hr = engine.make_result();
+
+  BoxState state = engine.make_state(F.mixing_height_m[0]);
+  if (c.spin_up == SpinUp::repeat_first_day) {
+    spin_up(c, met, F, engine, state, hr, R, progress);
+  } else {
+    set_initial_state(c, F, state);
+  }
+  allocate(R, n, P, R.n_parts);
   for (std::size_t p = 0; p < P; ++p) {
     R.initial_mixed_mass_g_m2[p] = engine.mixed_mass(state, p);
     R.initial_residual_mass_g_m2[p] = engine.residual_mass(state, p);
@@ -274,25 +324,7 @@ RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& pr
   const std::size_t report_every = std::max<std::size_t>(1, n / 100);
   for (std::size_t i = 0; i < n; ++i) {
     engine.step_hour(state, F, i, hr);
-    HourRecord& h = R.hours[i];
-    h.mixing_height_m = hr.mixing_height_mean_m;
-    h.wind_speed_m_s = hr.wind_speed_mean_m_s;
-    h.wind_from_deg = wind_from_deg(hr.wind_u_mean_m_s, hr.wind_v_mean_m_s);
-    h.ventilation_m2_s = hr.ventilation_mean_m2_s;
-    h.flushing_time_h = 1.0 / hr.flushing_rate_mean_per_s / 3600.0;
-    h.residual_top_m = state.residual_top_m;
-    h.calm_floor = hr.calm_floor;
-    h.lid_floor = hr.lid_floor;
-    h.substeps = hr.substeps;
-    std::copy(hr.mean_c_g_m3.begin(), hr.mean_c_g_m3.end(), R.mean_g_m3.begin() + static_cast<long>(i * P * J));
-    for (std::size_t p = 0; p < P; ++p) {
-      const std::size_t k = R.at(i, p);
-      R.end_mixed_g_m3[k] = state.c_total(p);
-      R.end_residual_g_m3[k] = state.residual_top_m > state.mixing_height_m ? state.cr_total(p) : 0.0;
-      R.budget[k] = hr.budget[p];
-      R.mixed_mass_g_m2[k] = engine.mixed_mass(state, p);
-      R.residual_mass_g_m2[k] = engine.residual_mass(state, p);
-    }
+    record_hour(i, engine, state, hr, R);
     if (progress && (i + 1) % report_every == 0) progress(static_cast<double>(i + 1) / static_cast<double>(n), "run");
   }
   return R;
