@@ -87,17 +87,16 @@ std::string now_utc() {
       std::chrono::duration_cast<std::chrono::seconds>(now.time_since_epoch()).count());
 }
 
-void write_file(int nc, const CfTable& t) {
-  const std::size_t n = t.time_utc.size();
-  const bool bounds = t.period_s > 0;
+// Ids of what write_file defines, for the data phase.
+struct Layout {
   int time_dim = 0, nv_dim = 0, strlen_dim = 0;
-  ok(nc_def_dim(nc, "time", NC_UNLIMITED, &time_dim), "dimension time");
-  if (bounds) ok(nc_def_dim(nc, "nv", 2, &nv_dim), "dimension nv");
-  const bool has_station = !t.station_name.empty();
-  if (has_station)
-    ok(nc_def_dim(nc, "name_strlen", t.station_name.size(), &strlen_dim), "dimension name_strlen");
+  int time_var = 0, bnds_var = -1, station_var = -1;
+  std::string coordinates = "time";
+  std::vector<std::pair<int, double>> scalars;  // lat, lon, alt: variable id and value
+  std::vector<int> ids;                          // one per CfTable::vars
+};
 
-  // Global attributes.
+void define_globals(int nc, const CfTable& t) {
   text_att(nc, NC_GLOBAL, "Conventions", "CF-1.12");
   text_att(nc, NC_GLOBAL, "featureType", "timeSeries");
   text_att(nc, NC_GLOBAL, "title", t.title.empty() ? std::string("lidbox output") : t.title);
@@ -106,85 +105,91 @@ void write_file(int nc, const CfTable& t) {
            now_utc() + " lidbox " + LIDBOX_VERSION + (t.history.empty() ? "" : ": " + t.history));
   text_att(nc, NC_GLOBAL, "caution", kScreeningCaution);
   for (const auto& [k, value] : t.global_attributes) text_att(nc, NC_GLOBAL, k.c_str(), value);
+}
 
-  // Coordinates (CF 4.4, Appendix H.4).
-  const UtcSeconds t0 = t.time_utc.front();
-  int time_var = 0, bnds_var = 0;
-  ok(nc_def_var(nc, "time", NC_DOUBLE, 1, &time_dim, &time_var), "variable time");
-  text_att(nc, time_var, "standard_name", "time");
-  text_att(nc, time_var, "long_name", bounds ? "start of the averaging period" : "time");
-  text_att(nc, time_var, "units", cf_hours_since(t0));
-  text_att(nc, time_var, "calendar", "standard");
-  text_att(nc, time_var, "units_metadata", "leap_seconds: none");
-  text_att(nc, time_var, "axis", "T");
+// Dimensions, time, time bounds, the station's scalar coordinates (CF 4.4, Appendix H.4).
+void define_coordinates(int nc, const CfTable& t, Layout& L) {
+  const bool bounds = t.period_s > 0;
+  ok(nc_def_dim(nc, "time", NC_UNLIMITED, &L.time_dim), "dimension time");
+  if (bounds) ok(nc_def_dim(nc, "nv", 2, &L.nv_dim), "dimension nv");
+  const bool has_station = !t.station_name.empty();
+  if (has_station)
+    ok(nc_def_dim(nc, "name_strlen", t.station_name.size(), &L.strlen_dim), "dimension name_strlen");
+  ok(nc_def_var(nc, "time", NC_DOUBLE, 1, &L.time_dim, &L.time_var), "variable time");
+  text_att(nc, L.time_var, "standard_name", "time");
+  text_att(nc, L.time_var, "long_name", bounds ? "start of the averaging period" : "time");
+  text_att(nc, L.time_var, "units", cf_hours_since(t.time_utc.front()));
+  text_att(nc, L.time_var, "calendar", "standard");
+  text_att(nc, L.time_var, "units_metadata", "leap_seconds: none");
+  text_att(nc, L.time_var, "axis", "T");
   if (bounds) {
-    text_att(nc, time_var, "bounds", "time_bnds");
-    text_att(nc, time_var, "comment",
+    text_att(nc, L.time_var, "bounds", "time_bnds");
+    text_att(nc, L.time_var, "comment",
              "each value covers the period [time_bnds(0), time_bnds(1)); time is its start");
-    const int dims[2] = {time_dim, nv_dim};
-    ok(nc_def_var(nc, "time_bnds", NC_DOUBLE, 2, dims, &bnds_var), "variable time_bnds");
+    const int dims[2] = {L.time_dim, L.nv_dim};
+    ok(nc_def_var(nc, "time_bnds", NC_DOUBLE, 2, dims, &L.bnds_var), "variable time_bnds");
   }
-  std::string coordinates = "time";
-  std::vector<std::pair<int, double>> scalars;
   const auto scalar = [&](const char* name, const char* sn, const char* units, double value) {
     int v = 0;
     ok(nc_def_var(nc, name, NC_DOUBLE, 0, nullptr, &v), std::string("variable ") + name);
     text_att(nc, v, "standard_name", sn);
     text_att(nc, v, "units", units);
-    scalars.emplace_back(v, value);
-    coordinates += std::string(" ") + name;
+    L.scalars.emplace_back(v, value);
+    L.coordinates += std::string(" ") + name;
   };
   if (t.lat_deg) scalar("lat", "latitude", "degrees_north", *t.lat_deg);
   if (t.lon_deg) scalar("lon", "longitude", "degrees_east", *t.lon_deg);
   if (t.alt_m) scalar("alt", "altitude", "m", *t.alt_m);
-  int station_var = -1;
   if (has_station) {
-    ok(nc_def_var(nc, "station_name", NC_CHAR, 1, &strlen_dim, &station_var),
+    ok(nc_def_var(nc, "station_name", NC_CHAR, 1, &L.strlen_dim, &L.station_var),
        "variable station_name");
-    text_att(nc, station_var, "long_name", "station name");
-    text_att(nc, station_var, "cf_role", "timeseries_id");
-    coordinates += " station_name";
+    text_att(nc, L.station_var, "long_name", "station name");
+    text_att(nc, L.station_var, "cf_role", "timeseries_id");
+    L.coordinates += " station_name";
   }
+}
 
-  std::vector<int> ids;
-  for (const auto& v : t.vars) {
-    const bool flag = !v.flag_meanings.empty();
-    int id = 0;
-    ok(nc_def_var(nc, v.name.c_str(), flag ? NC_BYTE : NC_DOUBLE, 1, &time_dim, &id),
-       "variable " + v.name);
-    if (!flag) {
-      const double fill = NC_FILL_DOUBLE;
-      ok(nc_put_att_double(nc, id, "_FillValue", NC_DOUBLE, 1, &fill), "_FillValue of " + v.name);
-    }
-    if (!v.standard_name.empty()) text_att(nc, id, "standard_name", v.standard_name);
-    if (!v.long_name.empty()) text_att(nc, id, "long_name", v.long_name);
-    if (!v.units.empty()) text_att(nc, id, "units", v.units);
-    if (!v.cell_methods.empty()) text_att(nc, id, "cell_methods", v.cell_methods);
-    if (flag) {
-      const auto put_bytes = [&](const char* name, const std::vector<int>& values) {
-        if (values.empty()) return;
-        std::vector<signed char> b;
-        for (int x : values) b.push_back(static_cast<signed char>(x));
-        ok(nc_put_att_schar(nc, id, name, NC_BYTE, b.size(), b.data()), std::string(name));
-      };
-      put_bytes("flag_values", v.flag_values);
-      put_bytes("flag_masks", v.flag_masks);
-      text_att(nc, id, "flag_meanings", v.flag_meanings);
-    }
-    text_att(nc, id, "coordinates", coordinates);
-    if (!v.comment.empty()) text_att(nc, id, "comment", v.comment);
-    for (const auto& [k, value] : v.attributes) text_att(nc, id, k.c_str(), value);
-    ids.push_back(id);
+// One data variable: doubles with a fill value, or a CF 3.5 flag variable of bytes.
+int define_variable(int nc, const CfVariable& v, const Layout& L) {
+  const bool flag = !v.flag_meanings.empty();
+  int id = 0;
+  ok(nc_def_var(nc, v.name.c_str(), flag ? NC_BYTE : NC_DOUBLE, 1, &L.time_dim, &id),
+     "variable " + v.name);
+  if (!flag) {
+    const double fill = NC_FILL_DOUBLE;
+    ok(nc_put_att_double(nc, id, "_FillValue", NC_DOUBLE, 1, &fill), "_FillValue of " + v.name);
   }
-  ok(nc_enddef(nc), "end of definitions");
+  if (!v.standard_name.empty()) text_att(nc, id, "standard_name", v.standard_name);
+  if (!v.long_name.empty()) text_att(nc, id, "long_name", v.long_name);
+  if (!v.units.empty()) text_att(nc, id, "units", v.units);
+  if (!v.cell_methods.empty()) text_att(nc, id, "cell_methods", v.cell_methods);
+  if (flag) {
+    const auto put_bytes = [&](const char* name, const std::vector<int>& values) {
+      if (values.empty()) return;
+      std::vector<signed char> b;
+      for (int x : values) b.push_back(static_cast<signed char>(x));
+      ok(nc_put_att_schar(nc, id, name, NC_BYTE, b.size(), b.data()), std::string(name));
+    };
+    put_bytes("flag_values", v.flag_values);
+    put_bytes("flag_masks", v.flag_masks);
+    text_att(nc, id, "flag_meanings", v.flag_meanings);
+  }
+  text_att(nc, id, "coordinates", L.coordinates);
+  if (!v.comment.empty()) text_att(nc, id, "comment", v.comment);
+  for (const auto& [k, value] : v.attributes) text_att(nc, id, k.c_str(), value);
+  return id;
+}
 
+void put_values(int nc, const CfTable& t, const Layout& L) {
+  const std::size_t n = t.time_utc.size();
+  const UtcSeconds t0 = t.time_utc.front();
   std::vector<double> hours(n);
   for (std::size_t i = 0; i < n; ++i) {
     hours[i] = static_cast<double>(t.time_utc[i] - t0) / static_cast<double>(kSecondsPerHour);
   }
   const std::size_t start0 = 0;
-  ok(nc_put_vara_double(nc, time_var, &start0, &n, hours.data()), "time values");
-  if (bounds) {
+  ok(nc_put_vara_double(nc, L.time_var, &start0, &n, hours.data()), "time values");
+  if (L.bnds_var >= 0) {
     std::vector<double> b(2 * n);
     const double p = static_cast<double>(t.period_s) / static_cast<double>(kSecondsPerHour);
     for (std::size_t i = 0; i < n; ++i) {
@@ -192,24 +197,33 @@ void write_file(int nc, const CfTable& t) {
       b[2 * i + 1] = hours[i] + p;
     }
     const std::size_t start[2] = {0, 0}, count[2] = {n, 2};
-    ok(nc_put_vara_double(nc, bnds_var, start, count, b.data()), "time_bnds values");
+    ok(nc_put_vara_double(nc, L.bnds_var, start, count, b.data()), "time_bnds values");
   }
-  for (auto [v, value] : scalars) ok(nc_put_var_double(nc, v, &value), "coordinate value");
-  if (has_station) ok(nc_put_var_text(nc, station_var, t.station_name.c_str()), "station_name");
+  for (auto [v, value] : L.scalars) ok(nc_put_var_double(nc, v, &value), "coordinate value");
+  if (L.station_var >= 0) ok(nc_put_var_text(nc, L.station_var, t.station_name.c_str()), "station_name");
   for (std::size_t k = 0; k < t.vars.size(); ++k) {
     const auto& v = t.vars[k];
     if (!v.flag_meanings.empty()) {
       std::vector<signed char> b;
       for (double x : v.values) b.push_back(static_cast<signed char>(x));
-      ok(nc_put_vara_schar(nc, ids[k], &start0, &n, b.data()), "values of " + v.name);
+      ok(nc_put_vara_schar(nc, L.ids[k], &start0, &n, b.data()), "values of " + v.name);
     } else {
       std::vector<double> out(v.values);
       for (auto& x : out) {
         if (std::isnan(x)) x = NC_FILL_DOUBLE;
       }
-      ok(nc_put_vara_double(nc, ids[k], &start0, &n, out.data()), "values of " + v.name);
+      ok(nc_put_vara_double(nc, L.ids[k], &start0, &n, out.data()), "values of " + v.name);
     }
   }
+}
+
+void write_file(int nc, const CfTable& t) {
+  Layout L;
+  define_coordinates(nc, t, L);
+  define_globals(nc, t);
+  for (const auto& v : t.vars) L.ids.push_back(define_variable(nc, v, L));
+  ok(nc_enddef(nc), "end of definitions");
+  put_values(nc, t, L);
 }
 
 }  // namespace

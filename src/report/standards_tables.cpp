@@ -195,17 +195,9 @@ std::vector<std::string> table_names(const StandardsReport& r) {
 
 }  // namespace
 
-std::string report_json(const StandardsReport& r) {
-  std::ostringstream o;
-  const auto& opt = r.options;
-  o << "{\n";
-  o << "  \"caution\": " << js(kScreeningCaution) << ",\n";
-  o << "  \"generator\": " << js(std::string("lidbox ") + LIDBOX_VERSION) << ",\n";
-  o << "  \"official\": false,\n";
-  o << "  \"input\": " << js(opt.input_label) << ",\n";
-  o << "  \"lst_offset\": " << js(format_utc_offset(opt.lst_offset_s)) << ",\n";
-  o << "  \"issue_time_utc\": "
-    << (opt.issue_time_utc ? js(format_utc(*opt.issue_time_utc)) : "null") << ",\n";
+namespace {
+
+void json_series(std::ostringstream& o, const StandardsReport& r) {
   o << "  \"series\": [";
   for (std::size_t i = 0; i < r.series.size(); ++i) {
     const auto& s = r.series[i];
@@ -214,6 +206,10 @@ std::string report_json(const StandardsReport& r) {
       << ", \"first_hour_start_utc\": " << js(format_utc(s.first_hour_start_utc))
       << ", \"hours\": " << s.hours << ", \"valid_hours\": " << s.valid_hours << "}";
   }
+}
+
+void json_rule_sets(std::ostringstream& o, const StandardsReport& r) {
+  const auto& opt = r.options;
   o << "\n  ],\n  \"rule_sets\": [";
   for (std::size_t i = 0; i < opt.rule_sets.size(); ++i) {
     const auto& rs = opt.rule_sets[i];
@@ -223,6 +219,9 @@ std::string report_json(const StandardsReport& r) {
       << ", \"reference_temperature_K\": " << jn(rs.reference.temperature_K)
       << ", \"reference_pressure_Pa\": " << jn(rs.reference.pressure_Pa) << "}";
   }
+}
+
+void json_limits(std::ostringstream& o, const StandardsReport& r) {
   o << "\n  ],\n  \"limits\": [";
   for (std::size_t i = 0; i < r.limits.size(); ++i) {
     const auto& x = r.limits[i];
@@ -241,6 +240,9 @@ std::string report_json(const StandardsReport& r) {
       << ", \"result\": " << js(to_string(x.verdict))
       << ", \"legal_source\": " << js(x.legal_source) << ", \"checked\": " << js(x.checked) << "}";
   }
+}
+
+void json_episodes(std::ostringstream& o, const StandardsReport& r) {
   o << "\n  ],\n  \"episodes\": [";
   for (std::size_t i = 0; i < r.episodes.size(); ++i) {
     const auto& e = r.episodes[i];
@@ -256,7 +258,10 @@ std::string report_json(const StandardsReport& r) {
       << ", \"legal_source\": " << js(e.legal_source) << "}";
   }
   o << "\n  ],\n";
-  if (opt.with_aqi) {
+}
+
+void json_aqi(std::ostringstream& o, const StandardsReport& r) {
+  const auto& opt = r.options;
     o << "  \"aqi\": {\"table\": " << js(aqi_table_name(opt.aqi_table)) << ", \"days\": [";
     for (std::size_t i = 0; i < r.aqi.size(); ++i) {
       const auto& d = r.aqi[i];
@@ -266,7 +271,8 @@ std::string report_json(const StandardsReport& r) {
     }
     o << "\n  ]},\n";
   }
-  if (opt.with_aqhi) {
+
+void json_aqhi(std::ostringstream& o, const StandardsReport& r) {
     std::map<std::string, int> counts;
     const AqhiHour* worst = nullptr;
     for (const auto& h : r.aqhi) {
@@ -288,6 +294,26 @@ std::string report_json(const StandardsReport& r) {
     }
     o << ", \"table\": \"aqhi.csv\"},\n";
   }
+
+}  // namespace
+
+std::string report_json(const StandardsReport& r) {
+  std::ostringstream o;
+  const auto& opt = r.options;
+  o << "{\n";
+  o << "  \"caution\": " << js(kScreeningCaution) << ",\n";
+  o << "  \"generator\": " << js(std::string("lidbox ") + LIDBOX_VERSION) << ",\n";
+  o << "  \"official\": false,\n";
+  o << "  \"input\": " << js(opt.input_label) << ",\n";
+  o << "  \"lst_offset\": " << js(format_utc_offset(opt.lst_offset_s)) << ",\n";
+  o << "  \"issue_time_utc\": "
+    << (opt.issue_time_utc ? js(format_utc(*opt.issue_time_utc)) : "null") << ",\n";
+  json_series(o, r);
+  json_rule_sets(o, r);
+  json_limits(o, r);
+  json_episodes(o, r);
+  if (opt.with_aqi) json_aqi(o, r);
+  if (opt.with_aqhi) json_aqhi(o, r);
   o << "  \"tables\": [";
   const auto names = table_names(r);
   for (std::size_t i = 0; i < names.size(); ++i) o << (i ? ", " : "") << js(names[i]);
@@ -316,9 +342,10 @@ std::string mdn(double v) {
 
 }  // namespace
 
-std::string report_markdown(const StandardsReport& r) {
+namespace {
+
+void md_header(std::ostringstream& o, const StandardsReport& r) {
   const auto& opt = r.options;
-  std::ostringstream o;
   o << "# Air-quality statistics against standards (screening estimate)\n\n";
   o << "> **Caution.** " << kScreeningCaution << "\n\n";
   o << "- Input: " << md(opt.input_label) << "\n";
@@ -335,6 +362,10 @@ std::string report_markdown(const StandardsReport& r) {
       << format_utc(s.first_hour_start_utc) << " | " << s.hours << " | " << s.valid_hours
       << " |\n";
   }
+}
+
+void md_rule_sets_and_limits(std::ostringstream& o, const StandardsReport& r) {
+  const auto& opt = r.options;
   o << "\n## Rule sets used\n\n| Id | Name | Legal source | Date | Reference conditions | File |\n"
        "|---|---|---|---|---|---|\n";
   for (const auto& rs : opt.rule_sets) {
@@ -369,6 +400,9 @@ std::string report_markdown(const StandardsReport& r) {
     }
     if (!any) o << "No limit of this rule set applies to the pollutants given.\n";
   }
+}
+
+void md_episodes(std::ostringstream& o, const StandardsReport& r) {
   o << "\n## Alert episodes\n\n";
   if (r.episodes.empty()) {
     o << "No episode above any alert rule of the rule sets used.\n";
@@ -382,7 +416,10 @@ std::string report_markdown(const StandardsReport& r) {
         << " " << md(e.unit) << " | " << (e.lead_time_h ? mdn(*e.lead_time_h) : "–") << " |\n";
     }
   }
-  if (opt.with_aqi) {
+}
+
+void md_aqi(std::ostringstream& o, const StandardsReport& r) {
+  const auto& opt = r.options;
     o << "\n## US Air Quality Index (breakpoints: " << aqi_table_name(opt.aqi_table) << ")\n\n";
     if (r.aqi.empty()) {
       o << "No day with a complete AQI input.\n";
@@ -402,7 +439,8 @@ std::string report_markdown(const StandardsReport& r) {
         << format_day(worst->day) << ", responsible pollutant " << worst->responsible << ".\n";
     }
   }
-  if (opt.with_aqhi) {
+
+void md_aqhi(std::ostringstream& o, const StandardsReport& r) {
     o << "\n## Canada AQHI (hourly, from 3-hour means)\n\n";
     if (r.aqhi.empty()) {
       o << "Not computed: NO2, O3 and PM2.5 are all needed.\n";
@@ -414,6 +452,16 @@ std::string report_markdown(const StandardsReport& r) {
         << ") for the 3 hours ending " << format_utc(worst->end_utc) << ".\n";
     }
   }
+
+}  // namespace
+
+std::string report_markdown(const StandardsReport& r) {
+  std::ostringstream o;
+  md_header(o, r);
+  md_rule_sets_and_limits(o, r);
+  md_episodes(o, r);
+  if (r.options.with_aqi) md_aqi(o, r);
+  if (r.options.with_aqhi) md_aqhi(o, r);
   o << "\n## How to read this\n\n"
        "- \"exceeded\": the statistic computed here from the series given is above the level "
        "(or the count above the allowed number); \"within\": not above, on a complete year; "
