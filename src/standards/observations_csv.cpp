@@ -3,6 +3,7 @@
 #include <charconv>
 #include <cmath>
 #include <fstream>
+#include <optional>
 #include <sstream>
 
 #include "base/civil_calendar.hpp"
@@ -23,6 +24,116 @@ std::vector<std::string> split_cells(std::string_view line) {
   return cells;
 }
 
+struct Column {
+  std::string pollutant;
+  std::string unit;  // canonical spelling
+};
+
+// The header: "time", then one "<pollutant> [<unit>]" per column, each pollutant once.
+std::vector<Column> read_header(const std::vector<std::string>& cells, std::string_view line,
+                                const std::string& where) {
+  if (cells.size() < 2 || !(cells[0] == "time" || cells[0] == "Time")) {
+    throw InputError(where, "header \"" + std::string(line) + "\"",
+                     "\"time\" followed by columns like \"PM2.5 [ug/m3]\"");
+  }
+  std::vector<Column> columns;
+  for (std::size_t c = 1; c < cells.size(); ++c) {
+    const std::string_view cell = cells[c];
+    const auto open = cell.find('[');
+    const auto close = cell.rfind(']');
+    if (open == std::string_view::npos || close == std::string_view::npos || close < open ||
+        close + 1 != cell.size()) {
+      throw InputError(where + ": column " + std::to_string(c + 1),
+                       "header \"" + std::string(cell) + "\" has no unit",
+                       "\"<pollutant> [<unit>]\", e.g. \"PM2.5 [ug/m3]\"");
+    }
+    const std::string name(trim(cell.substr(0, open)));
+    const std::string unit_text(trim(cell.substr(open + 1, close - open - 1)));
+    const std::string col_where = where + ": column \"" + std::string(cell) + "\"";
+    const PollutantInfo& p = pollutant_or_throw(name, col_where);
+    const auto unit =
+        parse_concentration_unit(unit_text, p.molar_mass_g_mol, kUsReferenceConditions, col_where);
+    for (const Column& other : columns) {
+      if (other.pollutant == p.name) {
+        throw InputError(col_where, "a second column for " + std::string(p.name),
+                         "one column per pollutant");
+      }
+    }
+    columns.push_back(Column{p.name, unit.canonical});
+  }
+  return columns;
+}
+
+// The data rows so far: one value array per column, on the hourly grid of the first row.
+struct Rows {
+  std::vector<Column> columns;
+  std::vector<std::vector<double>> values;
+  UtcSeconds first = 0;
+  UtcSeconds previous = 0;
+  std::size_t previous_line = 0;
+  std::size_t count = 0;
+};
+
+// The row's hour on the grid of the first row; hours strictly increase, gaps are allowed.
+std::size_t hour_index(const Rows& rows, const std::string& time_text, UtcSeconds t,
+                       const std::string& where) {
+  if (rows.count == 0) return 0;
+  if (t <= rows.previous) {
+    throw InputError(where,
+                     "time " + time_text + (t == rows.previous ? " repeats" : " goes back before") +
+                         " the hour on line " + std::to_string(rows.previous_line),
+                     "strictly increasing hours");
+  }
+  if ((t - rows.first) % kSecondsPerHour != 0) {
+    throw InputError(where,
+                     "time " + time_text + " is off the hourly grid of line " +
+                         std::to_string(rows.previous_line),
+                     "whole hours after the first row");
+  }
+  if (t - rows.first > 30LL * 366 * kSecondsPerDay) {
+    throw InputError(where, "time " + time_text + " is more than 30 years after the first row",
+                     "at most 30 years of hourly data");
+  }
+  return static_cast<std::size_t>((t - rows.first) / kSecondsPerHour);
+}
+
+// The row's values at `index`; the hours skipped since the previous row become missing values.
+void read_values(Rows& rows, const std::vector<std::string>& cells, std::size_t index,
+                 const std::string& where) {
+  for (std::size_t c = 0; c < rows.columns.size(); ++c) {
+    std::vector<double>& v = rows.values[c];
+    v.resize(index, kMissing);
+    const std::string_view cell = cells[c + 1];
+    if (cell.empty()) {
+      v.push_back(kMissing);
+      continue;
+    }
+    double x = 0.0;
+    const auto [end, ec] = std::from_chars(cell.data(), cell.data() + cell.size(), x);
+    if (ec != std::errc() || end != cell.data() + cell.size() || !std::isfinite(x)) {
+      throw InputError(
+          where + ": column \"" + rows.columns[c].pollutant + " [" + rows.columns[c].unit + "]\"",
+          "value \"" + std::string(cell) + "\"", "a number, or an empty cell for a missing value");
+    }
+    v.push_back(x);
+  }
+}
+
+void read_row(Rows& rows, const std::vector<std::string>& cells, std::size_t line_no,
+              const std::string& where) {
+  if (cells.size() != rows.columns.size() + 1) {
+    throw InputError(where, std::to_string(cells.size()) + " cells",
+                     std::to_string(rows.columns.size() + 1) + " cells as in the header");
+  }
+  const UtcSeconds t = parse_instant_with_offset(cells[0], where + ": time");
+  const std::size_t index = hour_index(rows, cells[0], t, where);
+  if (rows.count == 0) rows.first = t;
+  read_values(rows, cells, index, where);
+  rows.previous = t;
+  rows.previous_line = line_no;
+  ++rows.count;
+}
+
 }  // namespace
 
 int parse_utc_offset_s(std::string_view text, std::string_view where) {
@@ -37,119 +148,33 @@ UtcSeconds parse_instant_with_offset(std::string_view text, std::string_view whe
 Observations parse_observations_csv(std::string_view text, std::string_view path_view) {
   const std::string path(path_view);
   if (text.size() >= 3 && text.substr(0, 3) == "\xEF\xBB\xBF") text.remove_prefix(3);
-  Observations obs;
-  obs.path = path;
-  struct Column {
-    std::string pollutant;
-    std::string unit;
-  };
-  std::vector<Column> columns;
-  std::vector<std::vector<double>> values;
-  bool have_header = false;
-  UtcSeconds first = 0;
-  UtcSeconds previous = 0;
-  std::size_t previous_line = 0;
+  std::optional<Rows> rows;  // set by the header line
   std::size_t line_no = 0;
-  std::size_t pos = 0;
-  while (pos <= text.size()) {
+  for (std::size_t pos = 0; pos <= text.size();) {
     const std::size_t nl = text.find('\n', pos);
-    const std::string_view raw =
-        text.substr(pos, nl == std::string_view::npos ? text.size() - pos : nl - pos);
+    const std::string_view line =
+        trim(text.substr(pos, nl == std::string_view::npos ? text.size() - pos : nl - pos));
     pos = nl == std::string_view::npos ? text.size() + 1 : nl + 1;
     ++line_no;
-    const std::string_view line = trim(raw);
     if (line.empty() || line.front() == '#') continue;
     const std::string where = path + ":" + std::to_string(line_no);
     const auto cells = split_cells(line);
-    if (!have_header) {
-      if (cells.size() < 2 || !(cells[0] == "time" || cells[0] == "Time")) {
-        throw InputError(where, "header \"" + std::string(line) + "\"",
-                         "\"time\" followed by columns like \"PM2.5 [ug/m3]\"");
-      }
-      for (std::size_t c = 1; c < cells.size(); ++c) {
-        const std::string_view cell = cells[c];
-        const auto open = cell.find('[');
-        const auto close = cell.rfind(']');
-        if (open == std::string_view::npos || close == std::string_view::npos || close < open ||
-            close + 1 != cell.size()) {
-          throw InputError(where + ": column " + std::to_string(c + 1),
-                           "header \"" + std::string(cell) + "\" has no unit",
-                           "\"<pollutant> [<unit>]\", e.g. \"PM2.5 [ug/m3]\"");
-        }
-        const std::string name(trim(cell.substr(0, open)));
-        const std::string unit_text(trim(cell.substr(open + 1, close - open - 1)));
-        const std::string col_where = where + ": column \"" + std::string(cell) + "\"";
-        const PollutantInfo& p = pollutant_or_throw(name, col_where);
-        const auto unit = parse_concentration_unit(unit_text, p.molar_mass_g_mol,
-                                                   kUsReferenceConditions, col_where);
-        for (const Column& other : columns) {
-          if (other.pollutant == p.name) {
-            throw InputError(col_where, "a second column for " + std::string(p.name),
-                             "one column per pollutant");
-          }
-        }
-        columns.push_back(Column{p.name, unit.canonical});
-      }
-      values.resize(columns.size());
-      have_header = true;
-      continue;
-    }
-    if (cells.size() != columns.size() + 1) {
-      throw InputError(where, std::to_string(cells.size()) + " cells",
-                       std::to_string(columns.size() + 1) + " cells as in the header");
-    }
-    const UtcSeconds t = parse_instant_with_offset(cells[0], where + ": time");
-    std::size_t index = 0;
-    if (obs.rows == 0) {
-      first = t;
+    if (rows) {
+      read_row(*rows, cells, line_no, where);
     } else {
-      if (t <= previous) {
-        throw InputError(where,
-                         "time " + std::string(cells[0]) +
-                             (t == previous ? " repeats" : " goes back before") +
-                             " the hour on line " + std::to_string(previous_line),
-                         "strictly increasing hours");
-      }
-      if ((t - first) % kSecondsPerHour != 0) {
-        throw InputError(where,
-                         "time " + std::string(cells[0]) + " is off the hourly grid of line " +
-                             std::to_string(previous_line),
-                         "whole hours after the first row");
-      }
-      if (t - first > 30LL * 366 * kSecondsPerDay) {
-        throw InputError(
-            where, "time " + std::string(cells[0]) + " is more than 30 years after the first row",
-            "at most 30 years of hourly data");
-      }
+      rows.emplace();
+      rows->columns = read_header(cells, line, where);
+      rows->values.resize(rows->columns.size());
     }
-    index = static_cast<std::size_t>((t - first) / kSecondsPerHour);
-    for (std::size_t c = 0; c < columns.size(); ++c) {
-      std::vector<double>& v = values[c];
-      v.resize(index, kMissing);
-      const std::string_view cell = cells[c + 1];
-      if (cell.empty()) {
-        v.push_back(kMissing);
-        continue;
-      }
-      double x = 0.0;
-      const auto [end, ec] = std::from_chars(cell.data(), cell.data() + cell.size(), x);
-      if (ec != std::errc() || end != cell.data() + cell.size() || !std::isfinite(x)) {
-        throw InputError(
-            where + ": column \"" + columns[c].pollutant + " [" + columns[c].unit + "]\"",
-            "value \"" + std::string(cell) + "\"",
-            "a number, or an empty cell for a missing value");
-      }
-      v.push_back(x);
-    }
-    previous = t;
-    previous_line = line_no;
-    ++obs.rows;
   }
-  if (!have_header)
-    throw InputError(path, "no header line", "\"time\" followed by pollutant columns");
-  if (obs.rows == 0) throw InputError(path, "no data rows", "at least one hourly row");
-  for (std::size_t c = 0; c < columns.size(); ++c) {
-    obs.series[columns[c].pollutant] = HourlySeries{first, std::move(values[c]), columns[c].unit};
+  if (!rows) throw InputError(path, "no header line", "\"time\" followed by pollutant columns");
+  if (rows->count == 0) throw InputError(path, "no data rows", "at least one hourly row");
+  Observations obs;
+  obs.path = path;
+  obs.rows = rows->count;
+  for (std::size_t c = 0; c < rows->columns.size(); ++c) {
+    obs.series[rows->columns[c].pollutant] =
+        HourlySeries{rows->first, std::move(rows->values[c]), rows->columns[c].unit};
   }
   return obs;
 }

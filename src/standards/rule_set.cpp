@@ -1,6 +1,5 @@
 #include "lidbox/standards/rule_set.hpp"
 
-#include <toml++/toml.h>
 #include <algorithm>
 #include <cstdlib>
 #include <fstream>
@@ -8,6 +7,8 @@
 #include <sstream>
 
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/text.hpp"
+#include "lidbox/base/toml_table.hpp"
 #include "lidbox/standards/pollutant.hpp"
 
 namespace lidbox {
@@ -87,83 +88,6 @@ std::vector<std::string> names_of(const E (&all)[N]) {
   return out;
 }
 
-// One TOML table being read: remembers which keys were used so leftovers can be reported.
-class TableReader {
- public:
-  // Every key of the table must be in `allowed`; checked first, so a misspelt key is reported
-  // as such rather than as a missing one.
-  TableReader(const toml::table& t, std::string path, std::string context,
-              std::vector<std::string> allowed)
-      : t_(t), path_(std::move(path)), context_(std::move(context)) {
-    for (auto&& [k, v] : t_) {
-      const std::string key(k.str());
-      if (std::find(allowed.begin(), allowed.end(), key) != allowed.end()) continue;
-      throw InputError(where(&v), context_ + " has unknown key \"" + key + "\"",
-                       "one of " + join(allowed) + did_you_mean(key, allowed));
-    }
-  }
-
-  [[nodiscard]] std::string where(const toml::node* n = nullptr) const {
-    const auto& src = n ? n->source() : t_.source();
-    return path_ + ":" + std::to_string(src.begin.line);
-  }
-
-  const toml::node* node(const char* key) { return t_.get(key); }
-
-  std::string text(const char* key, bool required = true, std::string fallback = {}) {
-    const toml::node* n = node(key);
-    if (!n) return missing(key, required, "a string", std::move(fallback));
-    if (auto v = n->value<std::string>(); v && n->is_string()) return *v;
-    throw InputError(where(n), context_ + " key \"" + key + "\" is not a string", "a string");
-  }
-
-  double number(const char* key, bool required = true, double fallback = 0.0) {
-    const toml::node* n = node(key);
-    if (!n) {
-      if (required) throw InputError(where(), context_ + " has no \"" + key + "\"", "a number");
-      return fallback;
-    }
-    if (n->is_number()) return *n->value<double>();
-    throw InputError(where(n), context_ + " key \"" + key + "\" is not a number", "a number");
-  }
-
-  int integer(const char* key, bool required, int fallback, int min_value) {
-    const toml::node* n = node(key);
-    if (!n) {
-      if (required) throw InputError(where(), context_ + " has no \"" + key + "\"", "an integer");
-      return fallback;
-    }
-    if (!n->is_integer()) {
-      throw InputError(where(n), context_ + " key \"" + key + "\" is not an integer",
-                       "an integer >= " + std::to_string(min_value));
-    }
-    const std::int64_t v = *n->value<std::int64_t>();
-    if (v < min_value || v > 100000) {
-      throw InputError(where(n), context_ + " key \"" + key + "\" = " + std::to_string(v),
-                       "an integer >= " + std::to_string(min_value));
-    }
-    return static_cast<int>(v);
-  }
-
-  bool boolean(const char* key, bool fallback) {
-    const toml::node* n = node(key);
-    if (!n) return fallback;
-    if (n->is_boolean()) return *n->value<bool>();
-    throw InputError(where(n), context_ + " key \"" + key + "\" is not true/false",
-                     "true or false");
-  }
-
- private:
-  std::string missing(const char* key, bool required, const char* what, std::string fallback) {
-    if (required) throw InputError(where(), context_ + " has no \"" + key + "\"", what);
-    return fallback;
-  }
-
-  const toml::table& t_;
-  std::string path_;
-  std::string context_;
-};
-
 template <class E, std::size_t N>
 E enum_from(const std::string& text, const E (&all)[N], const std::string& where,
             const char* what) {
@@ -186,7 +110,7 @@ Rounding parse_rounding(const std::string& text, const std::string& where) {
     r.mode = RoundingMode::truncate;
   }
   if (r.mode == RoundingMode::none || colon == std::string::npos) {
-    throw InputError(where, "rounding \"" + text + "\"",
+    throw InputError(where, "\"" + text + "\"",
                      "none, round_half_up:<digits> or truncate:<digits>");
   }
   try {
@@ -194,7 +118,7 @@ Rounding parse_rounding(const std::string& text, const std::string& where) {
     r.decimals = std::stoi(text.substr(colon + 1), &used);
     if (used != text.size() - colon - 1 || r.decimals < -6 || r.decimals > 9) throw 0;
   } catch (...) {
-    throw InputError(where, "rounding \"" + text + "\"", "a digit count from -6 to 9 after ':'");
+    throw InputError(where, "\"" + text + "\"", "a digit count from -6 to 9 after ':'");
   }
   return r;
 }
@@ -213,7 +137,7 @@ int parse_averaging(const std::string& text, const std::string& where) {
       if (h >= 1 && h <= 8784) return h;
     }
   }
-  throw InputError(where, "averaging \"" + text + "\"",
+  throw InputError(where, "\"" + text + "\"",
                    "\"<k>-hour\" (k = 1 .. 8784), \"day\", \"year\" or \"peak-season\"");
 }
 
@@ -263,113 +187,169 @@ std::string check_tag(const std::string& checked, const std::string& where) {
     if (checked.rfind(tag, 0) == 0) return checked;
   }
   throw InputError(
-      where, "checked = \"" + checked + "\"",
+      where, "\"" + checked + "\"",
       "a text starting with SRC, MEM, PRAC or DERIVED saying how the entry was verified");
 }
 
-Limit read_limit(const toml::table& t, const std::string& path, const ReferenceConditions& ref) {
-  TableReader r(t, path, "[[limit]]",
-                {"id",
-                 "pollutant",
-                 "kind",
-                 "averaging",
-                 "statistic",
-                 "level",
-                 "unit",
-                 "form",
-                 "allowed_exceedances",
-                 "rank",
-                 "percentile",
-                 "ranking",
-                 "non_overlapping",
-                 "rounding",
-                 "min_valid_fraction",
-                 "incomplete_day_counts_if_above",
-                 "years_averaged",
-                 "legal_source",
-                 "legal_date",
-                 "checked",
-                 "note"});
-  Limit l;
-  l.where = r.where();
-  l.id = r.text("id");
-  l.pollutant = pollutant_or_throw(r.text("pollutant"), r.where(r.node("pollutant"))).name;
-  l.kind = r.text("kind");
-  const std::string statistic = r.text("statistic");
-  l.statistic = enum_from(statistic, kStatistics, r.where(r.node("statistic")), "statistic");
-  l.averaging = r.text("averaging");
-  l.averaging_h = check_averaging(l.statistic, l.averaging, r.where(r.node("averaging")));
-  l.level = r.number("level");
-  l.unit = r.text("unit");
-  (void)unit_factor(l.unit, l.unit, l.pollutant, ref, r.where(r.node("unit")));
-  const std::string form = r.text("form");
-  l.form = enum_from(form, kForms, r.where(r.node("form")), "form");
+// Counts (allowed exceedances, ranks, years, persistence hours) are small; the cap keeps a
+// typing slip from passing as a rule.
+constexpr int kMaxCount = 100000;
+
+int count(const TomlTable& r, const char* key, bool required, int fallback, int min_value) {
+  if (required) return r.required_whole_number(key, min_value, kMaxCount);
+  return r.optional_whole_number(key, min_value, kMaxCount).value_or(fallback);
+}
+
+const std::vector<std::string> kLimitKeys = {"id",
+                                             "pollutant",
+                                             "kind",
+                                             "averaging",
+                                             "statistic",
+                                             "level",
+                                             "unit",
+                                             "form",
+                                             "allowed_exceedances",
+                                             "rank",
+                                             "percentile",
+                                             "ranking",
+                                             "non_overlapping",
+                                             "rounding",
+                                             "min_valid_fraction",
+                                             "incomplete_day_counts_if_above",
+                                             "years_averaged",
+                                             "legal_source",
+                                             "legal_date",
+                                             "checked",
+                                             "note"};
+
+const std::vector<std::string> kAlertKeys = {
+    "id",   "pollutant",   "level_name",   "averaging",  "statistic", "threshold",
+    "unit", "persistence", "legal_source", "legal_date", "checked",   "note"};
+
+// How the statistic is judged against the level: counted exceedances, an n-th highest value, a
+// percentile, or the annual value itself.
+void read_limit_form(const TomlTable& r, Limit& l) {
+  const std::string form = r.required_string("form");
+  l.form = enum_from(form, kForms, r.where("form"), "form");
   if ((l.form == LimitForm::annual_value) != is_annual(l.statistic)) {
-    throw InputError(r.where(r.node("form")),
-                     "form \"" + form + "\" with statistic \"" + statistic + "\"",
+    throw InputError(r.where("form"),
+                     "form \"" + form + "\" with statistic \"" + to_string(l.statistic) + "\"",
                      is_annual(l.statistic) ? "form \"annual_value\" for an annual statistic"
                                             : "exceedances, nth_highest or percentile");
   }
-  l.allowed_exceedances = r.integer("allowed_exceedances", l.form == LimitForm::exceedances, 0, 0);
-  l.rank = r.integer("rank", l.form == LimitForm::nth_highest, 1, 1);
-  l.percentile = r.number("percentile", l.form == LimitForm::percentile, 0.0);
+  l.allowed_exceedances = count(r, "allowed_exceedances", l.form == LimitForm::exceedances, 0, 0);
+  l.rank = count(r, "rank", l.form == LimitForm::nth_highest, 1, 1);
+  l.percentile = l.form == LimitForm::percentile ? r.required_number("percentile")
+                                                 : r.optional_number("percentile").value_or(0.0);
   if (l.form == LimitForm::percentile) {
-    l.ranking = enum_from(r.text("ranking"), kRankings, r.where(r.node("ranking")), "ranking");
+    l.ranking = enum_from(r.required_string("ranking"), kRankings, r.where("ranking"), "ranking");
     if (!(l.percentile > 0.0 && l.percentile <= 100.0)) {
-      throw InputError(r.where(r.node("percentile")), "percentile " + std::to_string(l.percentile),
-                       "a value in (0, 100]");
+      throw InputError(r.where("percentile"), format_number(l.percentile), "a value in (0, 100]");
     }
   }
-  l.non_overlapping = r.boolean("non_overlapping", false);
+}
+
+// Which values count: windows, rounding before comparison, completeness, years averaged.
+void read_limit_data_rules(const TomlTable& r, Limit& l) {
+  l.non_overlapping = r.optional_bool("non_overlapping").value_or(false);
   if (l.non_overlapping && l.statistic != StatisticKind::running_mean) {
-    throw InputError(r.where(r.node("non_overlapping")),
-                     "non_overlapping with statistic \"" + statistic + "\"",
-                     "non_overlapping only with statistic \"running_mean\"");
+    throw InputError(
+        r.where("non_overlapping"),
+        std::string("non_overlapping with statistic \"") + to_string(l.statistic) + "\"",
+        "non_overlapping only with statistic \"running_mean\"");
   }
-  l.rounding = parse_rounding(r.text("rounding", false, "none"), r.where(r.node("rounding")));
-  l.min_valid_fraction = r.number("min_valid_fraction", false, 0.75);
+  l.rounding = parse_rounding(r.optional_string("rounding").value_or("none"), r.where("rounding"));
+  l.min_valid_fraction = r.optional_number("min_valid_fraction").value_or(0.75);
   if (!(l.min_valid_fraction > 0.0 && l.min_valid_fraction <= 1.0)) {
-    throw InputError(r.where(r.node("min_valid_fraction")),
-                     "min_valid_fraction " + std::to_string(l.min_valid_fraction),
+    throw InputError(r.where("min_valid_fraction"), format_number(l.min_valid_fraction),
                      "a fraction in (0, 1]");
   }
-  l.incomplete_day_counts_if_above = r.boolean("incomplete_day_counts_if_above", false);
-  l.years_averaged = r.integer("years_averaged", false, 1, 1);
-  l.legal_source = r.text("legal_source");
-  l.legal_date = r.text("legal_date", false);
-  l.checked = check_tag(r.text("checked"), r.where(r.node("checked")));
-  l.note = r.text("note", false);
+  l.incomplete_day_counts_if_above =
+      r.optional_bool("incomplete_day_counts_if_above").value_or(false);
+  l.years_averaged = count(r, "years_averaged", false, 1, 1);
+}
+
+Limit read_limit(const TomlTable& r, const ReferenceConditions& ref) {
+  Limit l;
+  l.where = r.location();
+  l.id = r.required_string("id");
+  l.pollutant = pollutant_or_throw(r.required_string("pollutant"), r.where("pollutant")).name;
+  l.kind = r.required_string("kind");
+  l.statistic =
+      enum_from(r.required_string("statistic"), kStatistics, r.where("statistic"), "statistic");
+  l.averaging = r.required_string("averaging");
+  l.averaging_h = check_averaging(l.statistic, l.averaging, r.where("averaging"));
+  l.level = r.required_number("level");
+  l.unit = r.required_string("unit");
+  (void)unit_factor(l.unit, l.unit, l.pollutant, ref, r.where("unit"));
+  read_limit_form(r, l);
+  read_limit_data_rules(r, l);
+  l.legal_source = r.required_string("legal_source");
+  l.legal_date = r.optional_string("legal_date").value_or("");
+  l.checked = check_tag(r.required_string("checked"), r.where("checked"));
+  l.note = r.optional_string("note").value_or("");
   return l;
 }
 
-AlertRule read_alert(const toml::table& t, const std::string& path,
-                     const ReferenceConditions& ref) {
-  TableReader r(t, path, "[[alert]]",
-                {"id", "pollutant", "level_name", "averaging", "statistic", "threshold", "unit",
-                 "persistence", "legal_source", "legal_date", "checked", "note"});
+AlertRule read_alert(const TomlTable& r, const ReferenceConditions& ref) {
   AlertRule a;
-  a.where = r.where();
-  a.id = r.text("id");
-  a.pollutant = pollutant_or_throw(r.text("pollutant"), r.where(r.node("pollutant"))).name;
-  a.level_name = r.text("level_name");
-  const std::string statistic = r.text("statistic");
-  a.statistic = enum_from(statistic, kStatistics, r.where(r.node("statistic")), "statistic");
+  a.where = r.location();
+  a.id = r.required_string("id");
+  a.pollutant = pollutant_or_throw(r.required_string("pollutant"), r.where("pollutant")).name;
+  a.level_name = r.required_string("level_name");
+  const std::string statistic = r.required_string("statistic");
+  a.statistic = enum_from(statistic, kStatistics, r.where("statistic"), "statistic");
   if (a.statistic != StatisticKind::hourly_value && a.statistic != StatisticKind::running_mean &&
       a.statistic != StatisticKind::daily_mean) {
-    throw InputError(r.where(r.node("statistic")), "alert statistic \"" + statistic + "\"",
+    throw InputError(r.where("statistic"), "alert statistic \"" + statistic + "\"",
                      "hourly_value, running_mean or daily_mean");
   }
-  a.averaging = r.text("averaging");
-  a.averaging_h = check_averaging(a.statistic, a.averaging, r.where(r.node("averaging")));
-  a.threshold = r.number("threshold");
-  a.unit = r.text("unit");
-  (void)unit_factor(a.unit, a.unit, a.pollutant, ref, r.where(r.node("unit")));
-  a.persistence = r.integer("persistence", false, 1, 1);
-  a.legal_source = r.text("legal_source");
-  a.legal_date = r.text("legal_date", false);
-  a.checked = check_tag(r.text("checked"), r.where(r.node("checked")));
-  a.note = r.text("note", false);
+  a.averaging = r.required_string("averaging");
+  a.averaging_h = check_averaging(a.statistic, a.averaging, r.where("averaging"));
+  a.threshold = r.required_number("threshold");
+  a.unit = r.required_string("unit");
+  (void)unit_factor(a.unit, a.unit, a.pollutant, ref, r.where("unit"));
+  a.persistence = count(r, "persistence", false, 1, 1);
+  a.legal_source = r.required_string("legal_source");
+  a.legal_date = r.optional_string("legal_date").value_or("");
+  a.checked = check_tag(r.required_string("checked"), r.where("checked"));
+  a.note = r.optional_string("note").value_or("");
   return a;
+}
+
+void read_head(const TomlTable& top, RuleSet& rs) {
+  const auto h =
+      top.optional_table("rule_set", {"id", "name", "legal_source", "legal_date", "note",
+                                      "reference_temperature_K", "reference_pressure_Pa"});
+  if (!h) top.throw_missing("rule_set", "a [rule_set] table with id and name");
+  rs.id = h->required_string("id");
+  rs.name = h->required_string("name");
+  rs.legal_source = h->required_string("legal_source");
+  rs.legal_date = h->required_string("legal_date");
+  rs.note = h->optional_string("note").value_or("");
+  rs.reference.temperature_K = h->required_number("reference_temperature_K");
+  rs.reference.pressure_Pa = h->required_number("reference_pressure_Pa");
+  if (!(rs.reference.temperature_K > 150.0 && rs.reference.temperature_K < 350.0) ||
+      !(rs.reference.pressure_Pa > 50000.0 && rs.reference.pressure_Pa < 120000.0)) {
+    throw InputError(h->where_table(),
+                     "reference conditions " + std::to_string(rs.reference.temperature_K) + " K, " +
+                         std::to_string(rs.reference.pressure_Pa) + " Pa",
+                     "a temperature of 150-350 K and a pressure of 50-120 kPa");
+  }
+}
+
+template <class Rule, class Reader>
+void read_rules(const TomlTable& top, const char* key, const std::vector<std::string>& keys,
+                Reader reader, const RuleSet& rs, std::set<std::string>& ids,
+                std::vector<Rule>& out) {
+  for (const TomlTable& t : top.array_of_tables(key, keys, std::string("[[") + key + "]] tables")) {
+    Rule rule = reader(t, rs.reference);
+    if (!ids.insert(rule.id).second) {
+      throw InputError(rule.where, "id \"" + rule.id + "\" used twice",
+                       "ids unique within the file");
+    }
+    out.push_back(std::move(rule));
+  }
 }
 
 }  // namespace
@@ -383,70 +363,17 @@ double unit_factor(std::string_view series_unit, std::string_view rule_unit,
   return from.to_g_m3 / to.to_g_m3;
 }
 
-RuleSet parse_rule_set(std::string_view toml_text, std::string_view path_view) {
-  const std::string path(path_view);
-  toml::table root;
-  try {
-    root = toml::parse(toml_text, path);
-  } catch (const toml::parse_error& e) {
-    throw InputError(path + ":" + std::to_string(e.source().begin.line),
-                     "TOML syntax error: " + std::string(e.description()), "valid TOML");
-  }
+RuleSet parse_rule_set(std::string_view toml_text, std::string_view path) {
+  const TomlDocument doc(toml_text, std::string(path));
+  const TomlTable top(doc, {"rule_set", "limit", "alert"});
   RuleSet rs;
   rs.path = path;
-  const std::vector<std::string> top_keys = {"alert", "limit", "rule_set"};
-  for (auto&& [k, v] : root) {
-    const std::string key(k.str());
-    if (std::find(top_keys.begin(), top_keys.end(), key) == top_keys.end()) {
-      throw InputError(path + ":" + std::to_string(v.source().begin.line),
-                       "unknown top-level key \"" + key + "\"",
-                       "[rule_set], [[limit]] or [[alert]]" + did_you_mean(key, top_keys));
-    }
-  }
-  const toml::table* head = root["rule_set"].as_table();
-  if (!head)
-    throw InputError(path + ":1", "no [rule_set] table", "a [rule_set] table with id and name");
-  TableReader h(*head, path, "[rule_set]",
-                {"id", "name", "legal_source", "legal_date", "note", "reference_temperature_K",
-                 "reference_pressure_Pa"});
-  rs.id = h.text("id");
-  rs.name = h.text("name");
-  rs.legal_source = h.text("legal_source");
-  rs.legal_date = h.text("legal_date");
-  rs.note = h.text("note", false);
-  rs.reference.temperature_K = h.number("reference_temperature_K");
-  rs.reference.pressure_Pa = h.number("reference_pressure_Pa");
-  if (!(rs.reference.temperature_K > 150.0 && rs.reference.temperature_K < 350.0) ||
-      !(rs.reference.pressure_Pa > 50000.0 && rs.reference.pressure_Pa < 120000.0)) {
-    throw InputError(h.where(),
-                     "reference conditions " + std::to_string(rs.reference.temperature_K) + " K, " +
-                         std::to_string(rs.reference.pressure_Pa) + " Pa",
-                     "a temperature of 150-350 K and a pressure of 50-120 kPa");
-  }
-
+  read_head(top, rs);
   std::set<std::string> ids;
-  auto read_array = [&](const char* key, auto reader, auto& out) {
-    const toml::node* n = root.get(key);
-    if (!n) return;
-    const toml::array* arr = n->as_array();
-    if (!arr || !arr->is_array_of_tables()) {
-      throw InputError(path + ":" + std::to_string(n->source().begin.line),
-                       std::string("\"") + key + "\" is not an array of tables",
-                       std::string("[[") + key + "]] tables");
-    }
-    for (const toml::node& el : *arr) {
-      auto item = reader(*el.as_table(), path, rs.reference);
-      if (!ids.insert(item.id).second) {
-        throw InputError(item.where, "id \"" + item.id + "\" used twice",
-                         "ids unique within the file");
-      }
-      out.push_back(std::move(item));
-    }
-  };
-  read_array("limit", read_limit, rs.limits);
-  read_array("alert", read_alert, rs.alerts);
+  read_rules(top, "limit", kLimitKeys, read_limit, rs, ids, rs.limits);
+  read_rules(top, "alert", kAlertKeys, read_alert, rs, ids, rs.alerts);
   if (rs.limits.empty() && rs.alerts.empty()) {
-    throw InputError(path + ":1", "no [[limit]] or [[alert]] tables", "at least one rule");
+    throw InputError(top.where_table(), "no [[limit]] or [[alert]] tables", "at least one rule");
   }
   return rs;
 }

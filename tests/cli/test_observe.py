@@ -80,7 +80,7 @@ with tempfile.TemporaryDirectory() as tmp:
     rc, so, se = run(["observe", good, "--rules", bad_rules, "--lst-offset", "+01:00",
                       "--out", out2])
     check(rc == 2, "bad rule file exits 2 (got %d)" % rc)
-    check(se.strip() == "lidbox: error: %s:13: unknown statistic \"max_8h\"; expected one of "
+    check(se.strip() == "lidbox: error: %s:13: [[limit]] statistic: unknown statistic \"max_8h\"; expected one of "
           "hourly_value, running_mean, daily_mean, daily_max_1h, daily_max_8h_17_windows, "
           "daily_max_8h_24_windows, annual_mean, annual_mean_of_quarterly_means, "
           "peak_season_mean" % bad_rules, "rule message asserted whole: %r" % se)

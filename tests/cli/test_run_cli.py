@@ -188,8 +188,8 @@ def replace_field(lines, row, col, value):
 
 def test_bad_inputs():
     expect_error("unknown key",
-                 'case.toml:10: [airshed]: unknown key "x_sid" (did you mean "x_side"?); '
-                 "expected one of x_side, y_side, x_side_bearing",
+                 'case.toml:10: [airshed]: unknown key "x_sid"; expected one of x_side, y_side, '
+                 'x_side_bearing (did you mean "x_side"?)',
                  case_edit=('x_side = "14 km"', 'x_sid = "14 km"'))
     expect_error("missing value",
                  'case.toml:27: [pollutants.CO]: no "background"; expected the concentration of the '

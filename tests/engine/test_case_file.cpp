@@ -76,10 +76,10 @@ TEST_CASE("case-file mistakes are named with file, line and key") {
     return std::string("no error");
   };
   CHECK(message("lifetime = \"10 h\"", "lifetim = \"10 h\"") ==
-        "case.toml:14: [pollutants.NO2]: unknown key \"lifetim\" (did you mean \"lifetime\"?); "
-        "expected one of unit, molar_mass, reference_conditions, lifetime, loss_rate, "
-        "residual_lifetime, residual_loss_rate, deposition_velocity, background, "
-        "free_troposphere, initial, initial_residual");
+        "case.toml:14: [pollutants.NO2]: unknown key \"lifetim\"; expected one of unit, "
+        "molar_mass, reference_conditions, lifetime, loss_rate, residual_lifetime, "
+        "residual_loss_rate, deposition_velocity, background, free_troposphere, initial, "
+        "initial_residual (did you mean \"lifetime\"?)");
   CHECK(message("lifetime = \"10 h\"", "lifetime = \"10 m\"") ==
         "case.toml:14: [pollutants.NO2] lifetime: unit \"m\" cannot be converted to \"s\"; "
         "expected a unit of time convertible to \"s\"");
@@ -88,15 +88,26 @@ TEST_CASE("case-file mistakes are named with file, line and key") {
         "area flux; expected a total rate such as \"1.5 t/h\" or \"400 g/s\", or an area flux "
         "such as \"2 ug m-2 s-1\"");
   CHECK(message("NO2 = \"1.8 t/h\"", "NOx = \"1.8 t/h\"") ==
-        "case.toml:24: [sectors.roads.emissions]: unknown key \"NOx\" (did you mean \"NO2\"?); "
-        "expected one of NO2, PM10");
+        "case.toml:24: [sectors.roads.emissions]: unknown key \"NOx\"; expected one of NO2, PM10 "
+        "(did you mean \"NO2\"?)");
   CHECK(message("{ from = \"45 deg\", to = \"315 deg\"", "{ from = \"50 deg\", to = \"315 deg\"") ==
         "case.toml:20: [pollutants.PM10.background] by_wind_from: the sector starting at 315 "
         "deg ends at 45 deg but the next starts at 50 deg; expected sectors that cover 0-360 deg "
         "without gaps or overlaps");
   CHECK(message("unit = \"ppb\"", "unit = \"ppb\"\nunit = \"ppm\"").rfind("case.toml:12: TOML syntax", 0) == 0);
   CHECK(message("[met]\nfile = \"met.csv\"", "[met]") ==
-        "case.toml:8: [met]: no \"file\"; expected a value for file");
+        "case.toml:8: [met]: no \"file\"; expected a string in quotes");
+  CHECK(message("[met]\nfile = \"met.csv\"", "[met]\nfile = \"met.csv\"\nmax_gap_hours = 49") ==
+        "case.toml:10: [met] max_gap_hours: 49; expected a whole number from 0 to 48");
+  // 2^32 + 1 wraps to 1 in a 32-bit int (closed form): refused, not run for one day.
+  CHECK(message("[met]\nfile = \"met.csv\"",
+                "[met]\nfile = \"met.csv\"\n[model]\nspin_up_max_days = 4294967297") ==
+        "case.toml:11: [model] spin_up_max_days: 4294967297; expected a whole number from 1 to "
+        "2147483647");
+  CHECK(message("[airshed]", "[airshd]") ==
+        "case.toml:4: (top level): unknown key \"airshd\"; expected one of name, title, invented, "
+        "time_zone, airshed, met, model, pollutants, sectors, standards, output (did you mean "
+        "\"airshed\"?)");
 }
 
 TEST_CASE("month weights are normalised by the mean month lengths of the Gregorian cycle") {
@@ -130,9 +141,9 @@ TEST_CASE("NetCDF met options in the case file are checked against the format") 
         "case.toml:10: [met] coarse_step: coarse_step = \"linear\" with hour averages; expected "
         "reading = \"instantaneous\": interpolated values are instants, not hour means");
   CHECK(message("[met]\nfile = \"m.nc\"\n[met.variables]\nmixing_hieght = \"blh\"") ==
-        "case.toml:11: [met.variables]: unknown key \"mixing_hieght\" (did you mean "
-        "\"mixing_height\"?); expected one of mixing_height, eastward_wind, northward_wind, "
-        "wind_speed, wind_from_direction, air_temperature, surface_pressure, time");
+        "case.toml:11: [met.variables]: unknown key \"mixing_hieght\"; expected one of "
+        "mixing_height, eastward_wind, northward_wind, wind_speed, wind_from_direction, "
+        "air_temperature, surface_pressure, time (did you mean \"mixing_height\"?)");
   // A point west of Greenwich written as a negative bearing-like angle is kept as -112 degrees.
   std::string text = kCase;
   text.replace(text.find("[met]\nfile = \"met.csv\""), 22,

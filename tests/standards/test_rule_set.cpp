@@ -102,7 +102,8 @@ TEST_CASE("an unknown statistic names file and line and lists the choices") {
   const std::string text =
       good_file(replaced(kLimit, "statistic = \"daily_mean\"", "statistic = \"daily_maen\""));
   CHECK(error_of(text) ==
-        "local.toml:14: unknown statistic \"daily_maen\"; expected one of hourly_value, "
+        "local.toml:14: [[limit]] statistic: unknown statistic \"daily_maen\"; expected one of "
+        "hourly_value, "
         "running_mean, daily_mean, daily_max_1h, daily_max_8h_17_windows, "
         "daily_max_8h_24_windows, annual_mean, annual_mean_of_quarterly_means, "
         "peak_season_mean (did you mean \"daily_mean\"?)");
@@ -111,7 +112,7 @@ TEST_CASE("an unknown statistic names file and line and lists the choices") {
 TEST_CASE("an unknown key gives a did-you-mean hint") {
   const std::string text = good_file(replaced(kLimit, "level = 50.0", "levle = 50.0"));
   CHECK(error_of(text) ==
-        "local.toml:15: [[limit]] has unknown key \"levle\"; expected one of id, pollutant, "
+        "local.toml:15: [[limit]]: unknown key \"levle\"; expected one of id, pollutant, "
         "kind, averaging, statistic, level, unit, form, allowed_exceedances, rank, percentile, "
         "ranking, non_overlapping, rounding, min_valid_fraction, "
         "incomplete_day_counts_if_above, years_averaged, legal_source, legal_date, checked, "
@@ -122,40 +123,54 @@ TEST_CASE("a unit that cannot be converted for the pollutant is refused") {
   // PM10 is a mass concentration; a mixing ratio has no meaning for it.
   const std::string text = good_file(replaced(kLimit, "unit = \"ug/m3\"", "unit = \"ppb\""));
   CHECK(error_of(text) ==
-        "local.toml:16: unit \"ppb\" is a mixing ratio; expected a molar_mass_g_mol for this "
+        "local.toml:16: [[limit]] unit: unit \"ppb\" is a mixing ratio; expected a "
+        "molar_mass_g_mol for this "
         "pollutant, or a mass unit such as ug/m3");
   const std::string unknown = good_file(replaced(kLimit, "unit = \"ug/m3\"", "unit = \"grains\""));
   CHECK(error_of(unknown) ==
-        "local.toml:16: unknown concentration unit \"grains\"; expected one of g/m3, mg/m3, "
+        "local.toml:16: [[limit]] unit: unknown concentration unit \"grains\"; expected one of "
+        "g/m3, mg/m3, "
         "ug/m3, ng/m3, ppm, ppb, ppt");
 }
 
 TEST_CASE("bad rule files: pollutant, averaging, form, rounding, syntax and duplicates") {
   CHECK(error_of(good_file(replaced(kLimit, "\"PM10\"", "\"PM01\""))) ==
-        "local.toml:11: unknown pollutant \"PM01\"; expected one of PM2.5, PM10, O3, NO2, SO2, "
+        "local.toml:11: [[limit]] pollutant: unknown pollutant \"PM01\"; expected one of PM2.5, "
+        "PM10, O3, NO2, SO2, "
         "CO, NO, benzene (did you mean \"PM10\"?)");
   CHECK(error_of(good_file(replaced(kLimit, "averaging = \"day\"", "averaging = \"8-hour\""))) ==
-        "local.toml:13: averaging \"8-hour\" with statistic \"daily_mean\"; expected averaging "
+        "local.toml:13: [[limit]] averaging: averaging \"8-hour\" with statistic \"daily_mean\"; "
+        "expected averaging "
         "\"24-hour\" or \"day\"");
   CHECK(
       error_of(good_file(replaced(kLimit, "form = \"exceedances\"", "form = \"annual_value\""))) ==
-      "local.toml:17: form \"annual_value\" with statistic \"daily_mean\"; expected "
+      "local.toml:17: [[limit]] form: form \"annual_value\" with statistic \"daily_mean\"; "
+      "expected "
       "exceedances, nth_highest or percentile");
   CHECK(error_of(good_file(std::string(kLimit) + "rounding = \"round:1\"\n")) ==
-        "local.toml:21: rounding \"round:1\"; expected none, round_half_up:<digits> or "
+        "local.toml:21: [[limit]] rounding: \"round:1\"; expected none, round_half_up:<digits> or "
         "truncate:<digits>");
   CHECK(error_of(good_file(replaced(kLimit, "level = 50.0", "level = \"50\""))) ==
-        "local.toml:15: [[limit]] key \"level\" is not a number; expected a number");
+        "local.toml:15: [[limit]] level: a string; expected a plain number (no unit)");
   CHECK(error_of(good_file(replaced(kLimit, "checked = \"PRAC: test\"", "checked = \"looked\""))) ==
-        "local.toml:20: checked = \"looked\"; expected a text starting with SRC, MEM, PRAC or "
+        "local.toml:20: [[limit]] checked: \"looked\"; expected a text starting with SRC, MEM, "
+        "PRAC or "
         "DERIVED saying how the entry was verified");
   CHECK(error_of(good_file(std::string(kLimit) + "\n[[limit]]\n" + kLimit)) ==
         "local.toml:22: id \"PM10-day\" used twice; expected ids unique within the file");
+  // 2^32 + 1 wraps to 1 in a 32-bit int (closed form): refused, not read as one exceedance.
+  CHECK(error_of(good_file(replaced(kLimit, "= 35", "= 4294967297"))) ==
+        "local.toml:18: [[limit]] allowed_exceedances: 4294967297; expected a whole number from 0 "
+        "to 100000");
+  CHECK(error_of(good_file(replaced(kLimit, "legal_source = \"invented\"\n", ""))) ==
+        "local.toml:9: [[limit]]: no \"legal_source\"; expected a string in quotes");
+  CHECK(error_of("[[limit]]\n" + std::string(kLimit)) ==
+        "local.toml:1: (top level): no \"rule_set\"; expected a [rule_set] table with id and name");
   const std::string syntax = error_of("[rule_set]\nid = \n");
   CHECK(syntax.rfind("local.toml:2: TOML syntax error: ", 0) == 0);
   CHECK(error_of(good_file(std::string(kLimit)) + "[[limt]]\n") ==
-        "local.toml:21: unknown top-level key \"limt\"; expected [rule_set], [[limit]] or "
-        "[[alert]] (did you mean \"limit\"?)");
+        "local.toml:21: (top level): unknown key \"limt\"; expected one of rule_set, limit, alert "
+        "(did you mean \"limit\"?)");
 }
 
 TEST_CASE("a rule set is found by id or by path, and an unknown id suggests the closest") {

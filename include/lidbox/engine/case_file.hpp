@@ -4,7 +4,8 @@
 // ("16 km", "0.5 m/s", "9 t/h", "3 day"), converted with UDUNITS-2.
 //
 // Unknown keys are errors with a "did you mean" hint; every missing required value is named;
-// every message starts with "<file>:<line>: [<table>] <key>". README.md documents each key.
+// every message starts with "<file>:<line>: [<table>] <key>" (the shapes of toml_table.hpp).
+// README.md documents each key.
 #pragma once
 
 #include <optional>
