@@ -5,7 +5,6 @@
 #include <algorithm>
 #include <cctype>
 #include <cmath>
-#include <filesystem>
 #include <functional>
 #include <limits>
 #include <numbers>
@@ -15,189 +14,17 @@
 #include "lidbox/base/error.hpp"
 #include "lidbox/base/text.hpp"
 #include "lidbox/base/units.hpp"
+#include "met/netcdf_file.hpp"
 
 namespace lidbox {
 namespace {
 
+using netcdf::File;
+using netcdf::is_coordinate;
+using netcdf::quoted;
+using netcdf::Var;
+
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-std::string quoted(const std::string& s) {
-  return "\"" + s + "\"";
-}
-
-// ---------------------------------------------------------------------------------------------
-// The file: dimensions, variables and their attributes.
-
-struct Var {
-  int id = -1;
-  std::string name;
-  nc_type type = NC_NAT;
-  std::vector<int> dims;
-};
-
-class File {
- public:
-  // `shown_as` names the file in messages ("" = the path).
-  File(const std::string& path, const std::string& shown_as)
-      : path_(shown_as.empty() ? path : shown_as) {
-    std::error_code ec;
-    if (!std::filesystem::exists(path, ec)) {
-      throw InputError(path_, "no such file", "an existing NetCDF file");
-    }
-    const int st = nc_open(path.c_str(), NC_NOWRITE, &id_);
-    if (st != NC_NOERR) {
-      id_ = -1;
-      throw InputError(path_, std::string("not readable as NetCDF (") + nc_strerror(st) + ")",
-                       "a NetCDF-3 or NetCDF-4 file");
-    }
-    int ndims = 0, nvars = 0;
-    check(nc_inq_ndims(id_, &ndims), "dimensions");
-    check(nc_inq_nvars(id_, &nvars), "variables");
-    // Dimension ids are 0..ndims-1 in the root group of the files lidbox reads.
-    for (int d = 0; d < ndims; ++d) {
-      char name[NC_MAX_NAME + 1] = {};
-      std::size_t len = 0;
-      check(nc_inq_dim(id_, d, name, &len), "dimension");
-      dim_names_.emplace_back(name);
-      dim_lens_.push_back(len);
-    }
-    for (int v = 0; v < nvars; ++v) {
-      Var var;
-      var.id = v;
-      char name[NC_MAX_NAME + 1] = {};
-      int nd = 0;
-      check(nc_inq_var(id_, v, name, &var.type, &nd, nullptr, nullptr), "variable");
-      var.name = name;
-      var.dims.resize(static_cast<std::size_t>(nd));
-      if (nd > 0) check(nc_inq_vardimid(id_, v, var.dims.data()), var.name);
-      vars_.push_back(var);
-    }
-  }
-  File(const File&) = delete;
-  File& operator=(const File&) = delete;
-  ~File() {
-    if (id_ >= 0) nc_close(id_);
-  }
-
-  [[nodiscard]] const std::string& path() const { return path_; }  // as named in messages
-  [[nodiscard]] int id() const { return id_; }
-  [[nodiscard]] const std::vector<Var>& vars() const { return vars_; }
-  [[nodiscard]] const std::string& dim_name(int d) const { return dim_names_.at(d); }
-  [[nodiscard]] std::size_t dim_len(int d) const { return dim_lens_.at(d); }
-
-  [[nodiscard]] const Var* find(const std::string& name) const {
-    for (const auto& v : vars_) {
-      if (v.name == name) return &v;
-    }
-    return nullptr;
-  }
-  [[nodiscard]] std::string where(const Var& v) const {
-    return path_ + ": variable " + quoted(v.name);
-  }
-  [[nodiscard]] std::vector<std::string> var_names() const {
-    std::vector<std::string> r;
-    for (const auto& v : vars_) r.push_back(v.name);
-    return r;
-  }
-  [[nodiscard]] std::string dims_text(const Var& v) const {
-    std::vector<std::string> n;
-    for (int d : v.dims) n.push_back(dim_name(d) + "=" + std::to_string(dim_len(d)));
-    return "(" + join(n) + ")";
-  }
-
-  void check(int status, const std::string& what) const {
-    if (status != NC_NOERR) {
-      throw InputError(path_ + ": " + what, std::string("NetCDF error: ") + nc_strerror(status),
-                       "a readable NetCDF file");
-    }
-  }
-
-  // Attributes of a variable (varid) or the file (NC_GLOBAL).
-  [[nodiscard]] std::optional<std::string> text_att(int varid, const char* name) const {
-    nc_type t = NC_NAT;
-    std::size_t len = 0;
-    if (nc_inq_att(id_, varid, name, &t, &len) != NC_NOERR) return std::nullopt;
-    if (t == NC_CHAR) {
-      std::string s(len, '\0');
-      if (len > 0) check(nc_get_att_text(id_, varid, name, s.data()), name);
-      while (!s.empty() && s.back() == '\0') s.pop_back();
-      return s;
-    }
-    if (t == NC_STRING && len >= 1) {
-      std::vector<char*> p(len, nullptr);
-      check(nc_get_att_string(id_, varid, name, p.data()), name);
-      std::string s = p[0] ? p[0] : "";
-      nc_free_string(len, p.data());
-      return s;
-    }
-    return std::nullopt;
-  }
-  [[nodiscard]] std::vector<double> number_att(int varid, const char* name) const {
-    nc_type t = NC_NAT;
-    std::size_t len = 0;
-    if (nc_inq_att(id_, varid, name, &t, &len) != NC_NOERR) return {};
-    if (t == NC_CHAR || t == NC_STRING) return {};
-    std::vector<double> r(len);
-    check(nc_get_att_double(id_, varid, name, r.data()), name);
-    return r;
-  }
-  [[nodiscard]] std::string standard_name(const Var& v) const {
-    return text_att(v.id, "standard_name").value_or("");
-  }
-
-  // A whole variable, converted to double by NetCDF-C.
-  [[nodiscard]] std::vector<double> read_all(const Var& v) const {
-    std::size_t n = 1;
-    for (int d : v.dims) n *= dim_len(d);
-    std::vector<double> r(n);
-    if (n > 0) check(nc_get_var_double(id_, v.id, r.data()), "variable " + quoted(v.name));
-    return r;
-  }
-  [[nodiscard]] std::vector<double> read_slab(const Var& v, const std::vector<std::size_t>& start,
-                                              const std::vector<std::size_t>& count) const {
-    std::size_t n = 1;
-    for (auto c : count) n *= c;
-    std::vector<double> r(n);
-    if (n > 0) {
-      check(nc_get_vara_double(id_, v.id, start.data(), count.data(), r.data()),
-            "variable " + quoted(v.name));
-    }
-    return r;
-  }
-  // Text values of a 1-D string variable, a 2-D char variable (instance, strlen), a scalar, or
-  // numbers formatted as integers.
-  [[nodiscard]] std::vector<std::string> read_ids(const Var& v) const {
-    std::vector<std::string> ids;
-    if (v.type == NC_STRING) {
-      std::size_t n = v.dims.empty() ? 1 : dim_len(v.dims[0]);
-      std::vector<char*> p(n, nullptr);
-      check(nc_get_var_string(id_, v.id, p.data()), "variable " + quoted(v.name));
-      for (auto* s : p) ids.emplace_back(s ? s : "");
-      nc_free_string(n, p.data());
-    } else if (v.type == NC_CHAR) {
-      const std::size_t n = v.dims.size() >= 2 ? dim_len(v.dims[0]) : 1;
-      const std::size_t w = v.dims.empty() ? 1 : dim_len(v.dims.back());
-      std::string buf(n * w, '\0');
-      if (!buf.empty()) check(nc_get_var_text(id_, v.id, buf.data()), "variable " + quoted(v.name));
-      for (std::size_t i = 0; i < n; ++i) {
-        std::string s = buf.substr(i * w, w);
-        s = s.substr(0, s.find('\0'));
-        while (!s.empty() && s.back() == ' ') s.pop_back();
-        ids.push_back(s);
-      }
-    } else {
-      for (double x : read_all(v)) ids.push_back(std::to_string(std::llround(x)));
-    }
-    return ids;
-  }
-
- private:
-  std::string path_;
-  int id_ = -1;
-  std::vector<std::string> dim_names_;
-  std::vector<std::size_t> dim_lens_;
-  std::vector<Var> vars_;
-};
 
 // ---------------------------------------------------------------------------------------------
 // Roles.
@@ -236,10 +63,6 @@ const Role& role(const std::string& key) {
     if (r.key == key) return r;
   }
   throw InternalError("unknown role " + key);
-}
-
-bool is_coordinate(const File& f, const Var& v) {
-  return v.dims.size() == 1 && f.dim_name(v.dims[0]) == v.name;
 }
 
 // The variable closest to what was sought, among data variables (not coordinates); "" if none is
@@ -717,85 +540,9 @@ Selection select(const File& f, const Var& v, const NetcdfMetOptions& opt, const
 }
 
 // ---------------------------------------------------------------------------------------------
-// Values: missing values, unpacking, units.
+// Values of the selected cells, in the caller's units.
 
-double default_fill(nc_type t) {
-  switch (t) {
-    case NC_BYTE:
-      return NC_FILL_BYTE;
-    case NC_SHORT:
-      return NC_FILL_SHORT;
-    case NC_INT:
-      return NC_FILL_INT;
-    case NC_FLOAT:
-      return static_cast<double>(NC_FILL_FLOAT);
-    case NC_DOUBLE:
-      return NC_FILL_DOUBLE;
-    case NC_UBYTE:
-      return NC_FILL_UBYTE;
-    case NC_USHORT:
-      return NC_FILL_USHORT;
-    case NC_UINT:
-      return NC_FILL_UINT;
-    default:
-      return kNaN;
-  }
-}
-
-struct Unpacker {
-  std::vector<double> missing;
-  double valid_min = -std::numeric_limits<double>::infinity();
-  double valid_max = std::numeric_limits<double>::infinity();
-  double scale = 1.0, offset = 0.0;
-  bool is_float = false;
-  double unsigned_wrap = 0.0;  // 2^bits for a signed type marked _Unsigned = "true"
-
-  Unpacker(const File& f, const Var& v) {
-    is_float = v.type == NC_FLOAT || v.type == NC_DOUBLE;
-    auto fill = f.number_att(v.id, "_FillValue");
-    if (fill.empty() && v.type != NC_BYTE && v.type != NC_UBYTE) {
-      // CF 2.5.1 / NetCDF User Guide: without _FillValue, the type's default fill marks
-      // unwritten values (not for bytes, which often hold flags or small counts).
-      const double d = default_fill(v.type);
-      if (!std::isnan(d)) fill.push_back(d);
-    }
-    // NetCDF User Guide, "_Unsigned": NetCDF-3 stores unsigned data in signed types.
-    if (lower(f.text_att(v.id, "_Unsigned").value_or("")) == "true") {
-      if (v.type == NC_BYTE) unsigned_wrap = 256.0;
-      if (v.type == NC_SHORT) unsigned_wrap = 65536.0;
-      if (v.type == NC_INT) unsigned_wrap = 4294967296.0;
-    }
-    missing = fill;
-    for (double m : f.number_att(v.id, "missing_value")) missing.push_back(m);
-    const auto range = f.number_att(v.id, "valid_range");
-    if (range.size() == 2) {
-      valid_min = range[0];
-      valid_max = range[1];
-    }
-    if (auto a = f.number_att(v.id, "valid_min"); a.size() == 1) valid_min = a[0];
-    if (auto a = f.number_att(v.id, "valid_max"); a.size() == 1) valid_max = a[0];
-    if (auto a = f.number_att(v.id, "scale_factor"); a.size() == 1) scale = a[0];
-    if (auto a = f.number_att(v.id, "add_offset"); a.size() == 1) offset = a[0];
-  }
-  // Fill and missing values are compared in the stored (signed) type; valid bounds after the
-  // unsigned reinterpretation, as the NetCDF User Guide reads them.
-  [[nodiscard]] double operator()(double packed) const {
-    if (std::isnan(packed)) return kNaN;
-    for (double m : missing) {
-      // Float fill values pass through NetCDF-C's float->double conversion exactly, so equality
-      // is the right test; a relative tolerance guards fills written as float but declared as
-      // double by careless writers.
-      if (packed == m || (is_float && m != 0.0 && std::fabs(packed - m) <= 1e-7 * std::fabs(m))) {
-        return kNaN;
-      }
-    }
-    if (unsigned_wrap > 0.0 && packed < 0.0) packed += unsigned_wrap;
-    if (packed < valid_min || packed > valid_max) return kNaN;
-    return packed * scale + offset;
-  }
-};
-
-// One variable, read for its selected cells: values[cell][record], unpacked and in `to` units.
+// One variable, read for its selected cells: cells[cell][record], unpacked and in `to` units.
 struct CellValues {
   std::vector<std::vector<double>> cells;
   std::vector<double> weights;
@@ -809,8 +556,7 @@ CellValues read_cells(const File& f, const Var& v, const Selection& s,
     throw InputError(f.where(v), "no units attribute", "a units attribute (CF 3.1)");
   }
   const UnitConversion cv = convert(*units);
-  const Unpacker unpack(f, v);
-  const auto raw = f.read_slab(v, s.start, s.count);
+  const auto values = f.read_values(v, s.start, s.count);
   const std::size_t nt = s.count[s.time_pos];
   // Records are the time index; the slab is in the variable's own dimension order, so the
   // element of (record r, cell offset o) is found through the strides around the time position.
@@ -822,7 +568,7 @@ CellValues read_cells(const File& f, const Var& v, const Selection& s,
     const std::size_t lo = cell.offset_in_record % inner;  // index over dims after time
     std::vector<double> series(nt);
     for (std::size_t r = 0; r < nt; ++r) {
-      const double x = unpack(raw[(hi * nt + r) * inner + lo]);
+      const double x = values[(hi * nt + r) * inner + lo];
       series[r] = std::isnan(x) ? kNaN : cv(x);
     }
     out.cells.push_back(std::move(series));
@@ -876,12 +622,11 @@ TimeAxis read_time(const File& f, const Selection& s, const Var* mapped_time,
   if (!units) throw InputError(where, "no units attribute", "time units \"<unit> since <date>\"");
   const CfTimeUnits tu =
       parse_cf_time_units(*units, f.text_att(tv->id, "calendar").value_or(""), where);
-  const Unpacker unpack(f, *tv);
-  const auto raw = f.read_all(*tv);
+  const auto raw = f.read_values(*tv);
   TimeAxis axis;
   axis.variable = tv->name;
   for (std::size_t i = 0; i < raw.size(); ++i) {
-    const double x = unpack(raw[i]);
+    const double x = raw[i];
     if (std::isnan(x)) {
       throw InputError(where, "a missing time value at index " + std::to_string(i),
                        "a time value for every record");
