@@ -15,13 +15,18 @@
 #include "lidbox/base/text.hpp"
 #include "lidbox/base/units.hpp"
 #include "met/netcdf_file.hpp"
+#include "met/netcdf_time_axis.hpp"
 
 namespace lidbox {
 namespace {
 
 using netcdf::File;
+using netcdf::Hourly;
 using netcdf::is_coordinate;
 using netcdf::quoted;
+using netcdf::read_time_axis;
+using netcdf::TimeAxis;
+using netcdf::to_hourly;
 using netcdf::Var;
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
@@ -599,218 +604,6 @@ std::vector<double> cell_mean(const std::vector<std::vector<double>>& cells,
 }
 
 // ---------------------------------------------------------------------------------------------
-// Time axis and resampling.
-
-struct TimeAxis {
-  std::vector<UtcSeconds> t;
-  std::string variable;
-  std::string bounds_label;  // NetcdfReadInfo::time_bounds_label
-};
-
-TimeAxis read_time(const File& f, const Selection& s, const Var* mapped_time,
-                   bool use_bounds_start) {
-  const Var* tv = mapped_time;
-  if (!tv) {
-    tv = f.find(f.dim_name(s.time_dim));
-    if (!tv) throw InternalError("time coordinate vanished");
-  }
-  const std::string where = f.where(*tv);
-  if (tv->dims.size() != 1) {
-    throw InputError(where, "dimensions " + f.dims_text(*tv), "a 1-D time coordinate time(time)");
-  }
-  const auto units = f.text_att(tv->id, "units");
-  if (!units) throw InputError(where, "no units attribute", "time units \"<unit> since <date>\"");
-  const CfTimeUnits tu =
-      parse_cf_time_units(*units, f.text_att(tv->id, "calendar").value_or(""), where);
-  const auto raw = f.read_values(*tv);
-  TimeAxis axis;
-  axis.variable = tv->name;
-  for (std::size_t i = 0; i < raw.size(); ++i) {
-    const double x = raw[i];
-    if (std::isnan(x)) {
-      throw InputError(where, "a missing time value at index " + std::to_string(i),
-                       "a time value for every record");
-    }
-    axis.t.push_back(decode_cf_time(tu, x, where));
-  }
-  // CF 7.1: a bounds variable (time, 2) gives each cell's start and end. Hour means are labelled
-  // by their start in an HourlySeries (use_bounds_start); for met the stamps stay and the caller
-  // learns which end they mark.
-  if (auto bname = f.text_att(tv->id, "bounds")) {
-    const Var* bv = f.find(*bname);
-    if (bv && bv->dims.size() == 2 && f.dim_len(bv->dims[1]) == 2 &&
-        f.dim_len(bv->dims[0]) == raw.size() && !raw.empty()) {
-      const auto b = f.read_all(*bv);
-      std::vector<UtcSeconds> lo(raw.size()), hi(raw.size());
-      for (std::size_t i = 0; i < raw.size(); ++i) {
-        lo[i] = decode_cf_time(tu, std::min(b[2 * i], b[2 * i + 1]), f.where(*bv));
-        hi[i] = decode_cf_time(tu, std::max(b[2 * i], b[2 * i + 1]), f.where(*bv));
-      }
-      axis.bounds_label = lo == axis.t ? "period_start" : hi == axis.t ? "period_end" : "other";
-      if (use_bounds_start) axis.t = lo;
-    }
-  }
-  for (std::size_t i = 1; i < axis.t.size(); ++i) {
-    if (axis.t[i] <= axis.t[i - 1]) {
-      throw InputError(where,
-                       std::string(axis.t[i] == axis.t[i - 1] ? "a duplicate" : "a decreasing") +
-                           " time at index " + std::to_string(i) + " (" + format_utc(axis.t[i]) +
-                           " after " + format_utc(axis.t[i - 1]) + ")",
-                       "strictly increasing times");
-    }
-  }
-  if (axis.t.empty()) throw InputError(where, "no time records", "at least one record");
-  return axis;
-}
-
-struct Hourly {
-  UtcSeconds first = 0;
-  std::vector<std::vector<double>> columns;
-  std::vector<int> record;  // 1-based record of each hour; 0 when none
-  std::string rule;
-};
-
-Hourly to_hourly(const File& f, const TimeAxis& axis, const std::vector<std::vector<double>>& cols,
-                 SubHourlyRule sub, CoarseStepRule coarse) {
-  const std::string where = f.path() + ": variable " + quoted(axis.variable);
-  const auto& t = axis.t;
-  const std::size_t n = t.size();
-  UtcSeconds step = kSecondsPerHour;
-  if (n >= 2) {
-    step = std::numeric_limits<UtcSeconds>::max();
-    for (std::size_t i = 1; i < n; ++i) step = std::min(step, t[i] - t[i - 1]);
-    for (std::size_t i = 1; i < n; ++i) {
-      if ((t[i] - t[i - 1]) % step != 0) {
-        throw InputError(where,
-                         "an irregular time axis (steps of " + std::to_string(step) + " s and " +
-                             std::to_string(t[i] - t[i - 1]) + " s at " + format_utc(t[i]) + ")",
-                         "a regular time step; absent records may leave whole steps out");
-      }
-    }
-  }
-  const auto floor_hour = [](UtcSeconds x) {
-    return x - ((x % kSecondsPerHour) + kSecondsPerHour) % kSecondsPerHour;
-  };
-  Hourly h;
-  h.columns.resize(cols.size());
-  const std::string step_text = std::to_string(step) + " s";
-  if (step == kSecondsPerHour) {
-    if (t[0] % kSecondsPerHour != 0) {
-      throw InputError(where, "hourly stamps off the whole hour (first " + format_utc(t[0]) + ")",
-                       "stamps on whole UTC hours");
-    }
-    h.first = t[0];
-    const std::size_t nh = static_cast<std::size_t>((t[n - 1] - t[0]) / kSecondsPerHour) + 1;
-    for (auto& c : h.columns) c.assign(nh, kNaN);
-    h.record.assign(nh, 0);
-    for (std::size_t i = 0; i < n; ++i) {
-      const auto k = static_cast<std::size_t>((t[i] - t[0]) / kSecondsPerHour);
-      for (std::size_t c = 0; c < cols.size(); ++c) h.columns[c][k] = cols[c][i];
-      h.record[k] = static_cast<int>(i + 1);
-    }
-    h.rule = "hourly, used as is";
-    return h;
-  }
-  if (step < kSecondsPerHour && kSecondsPerHour % step == 0) {
-    if (sub == SubHourlyRule::refuse) {
-      throw InputError(where, "a time step of " + step_text,
-                       "hourly data (sub-hourly refused by option)");
-    }
-    if (sub == SubHourlyRule::on_the_hour) {
-      std::vector<std::size_t> keep;
-      for (std::size_t i = 0; i < n; ++i) {
-        if (t[i] % kSecondsPerHour == 0) keep.push_back(i);
-      }
-      if (keep.empty()) {
-        throw InputError(where, "no stamp on a whole UTC hour", "samples on whole hours");
-      }
-      h.first = t[keep.front()];
-      const std::size_t nh =
-          static_cast<std::size_t>((t[keep.back()] - h.first) / kSecondsPerHour) + 1;
-      for (auto& c : h.columns) c.assign(nh, kNaN);
-      h.record.assign(nh, 0);
-      for (std::size_t i : keep) {
-        const auto k = static_cast<std::size_t>((t[i] - h.first) / kSecondsPerHour);
-        for (std::size_t c = 0; c < cols.size(); ++c) h.columns[c][k] = cols[c][i];
-        h.record[k] = static_cast<int>(i + 1);
-      }
-      h.rule = step_text + ", the samples on whole hours";
-      return h;
-    }
-    const auto per_hour = static_cast<std::size_t>(kSecondsPerHour / step);
-    h.first = floor_hour(t[0]);
-    const std::size_t nh =
-        static_cast<std::size_t>((floor_hour(t[n - 1]) - h.first) / kSecondsPerHour) + 1;
-    h.record.assign(nh, 0);
-    for (std::size_t c = 0; c < cols.size(); ++c) {
-      std::vector<double> sum(nh, 0.0);
-      std::vector<std::size_t> cnt(nh, 0);
-      for (std::size_t i = 0; i < n; ++i) {
-        const auto k = static_cast<std::size_t>((floor_hour(t[i]) - h.first) / kSecondsPerHour);
-        if (h.record[k] == 0) h.record[k] = static_cast<int>(i + 1);
-        if (!std::isnan(cols[c][i])) {
-          sum[k] += cols[c][i];
-          ++cnt[k];
-        }
-      }
-      h.columns[c].assign(nh, kNaN);
-      for (std::size_t k = 0; k < nh; ++k) {
-        if (cnt[k] > 0 && 4 * cnt[k] >= 3 * per_hour)
-          h.columns[c][k] = sum[k] / static_cast<double>(cnt[k]);
-      }
-    }
-    h.rule = step_text + ", hour means of the samples in [H, H+1h) stamped H (75 % rule)";
-    return h;
-  }
-  if (step > kSecondsPerHour && step % kSecondsPerHour == 0) {
-    if (coarse == CoarseStepRule::refuse) {
-      throw InputError(
-          where,
-          "a time step of " + step_text + " (" + std::to_string(step / kSecondsPerHour) + " h)",
-          "hourly data, or linear interpolation to hours asked for "
-          "([met] coarse_step = \"linear\", --coarse linear)");
-    }
-    if (t[0] % kSecondsPerHour != 0) {
-      throw InputError(where, "stamps off the whole hour (first " + format_utc(t[0]) + ")",
-                       "stamps on whole UTC hours");
-    }
-    const auto ratio = static_cast<std::size_t>(step / kSecondsPerHour);
-    const std::size_t ng = static_cast<std::size_t>((t[n - 1] - t[0]) / step) + 1;
-    std::vector<std::vector<double>> grid(cols.size(), std::vector<double>(ng, kNaN));
-    std::vector<int> grec(ng, 0);
-    for (std::size_t i = 0; i < n; ++i) {
-      const auto g = static_cast<std::size_t>((t[i] - t[0]) / step);
-      for (std::size_t c = 0; c < cols.size(); ++c) grid[c][g] = cols[c][i];
-      grec[g] = static_cast<int>(i + 1);
-    }
-    h.first = t[0];
-    const std::size_t nh = (ng - 1) * ratio + 1;
-    h.record.assign(nh, 0);
-    for (std::size_t k = 0; k < nh; ++k) {
-      const std::size_t g = k / ratio;
-      if (k % ratio == 0) h.record[k] = grec[g];
-    }
-    for (std::size_t c = 0; c < cols.size(); ++c) {
-      h.columns[c].assign(nh, kNaN);
-      for (std::size_t k = 0; k < nh; ++k) {
-        const std::size_t g = k / ratio, r = k % ratio;
-        if (r == 0) {
-          h.columns[c][k] = grid[c][g];
-        } else {
-          const double a = grid[c][g], b = grid[c][g + 1];
-          const double frac = static_cast<double>(r) / static_cast<double>(ratio);
-          h.columns[c][k] = a + (b - a) * frac;  // NaN when either end is missing
-        }
-      }
-    }
-    h.rule = step_text + ", interpolated linearly to whole hours";
-    return h;
-  }
-  throw InputError(where, "a time step of " + step_text,
-                   "hourly data, a step that divides an hour, or a whole number of hours");
-}
-
-// ---------------------------------------------------------------------------------------------
 
 struct Loaded {
   const Var* var = nullptr;
@@ -825,7 +618,7 @@ Loaded load(const File& f, const Var& v, const NetcdfMetOptions& opt, const Var*
   l.var = &v;
   l.sel = select(f, v, opt, mapped_time);
   l.values = read_cells(f, v, l.sel, convert);
-  l.axis = read_time(f, l.sel, mapped_time, bounds_start);
+  l.axis = read_time_axis(f, l.sel.time_dim, mapped_time, bounds_start);
   return l;
 }
 
