@@ -1,31 +1,34 @@
 #include "lidbox/met/netcdf_met.hpp"
 
-#include <netcdf.h>
-
-#include <algorithm>
-#include <cctype>
 #include <cmath>
 #include <functional>
 #include <limits>
-#include <numbers>
-#include <set>
+#include <map>
+#include <optional>
+#include <utility>
 
-#include "lidbox/base/cf_time.hpp"
 #include "lidbox/base/error.hpp"
 #include "lidbox/base/text.hpp"
 #include "lidbox/base/units.hpp"
 #include "met/netcdf_file.hpp"
 #include "met/netcdf_layout.hpp"
+#include "met/netcdf_roles.hpp"
 #include "met/netcdf_time_axis.hpp"
+
+// The reader composes four private concepts of src/met: netcdf_file (access and unpacking),
+// netcdf_roles (which variable is what), netcdf_layout (which cells) and netcdf_time_axis
+// (which hours).
 
 namespace lidbox {
 namespace {
 
+using netcdf::by_standard_name;
 using netcdf::cell_mean;
 using netcdf::CellValues;
 using netcdf::File;
 using netcdf::Hourly;
-using netcdf::is_coordinate;
+using netcdf::MetVariables;
+using netcdf::present_and_hint;
 using netcdf::quoted;
 using netcdf::read_cells;
 using netcdf::read_time_axis;
@@ -38,135 +41,7 @@ using netcdf::Var;
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
-// ---------------------------------------------------------------------------------------------
-// Roles.
-
-struct Role {
-  std::string key;          // role name in NetcdfMetOptions::variables
-  std::string description;  // for messages
-  std::string standard_name;
-  std::vector<std::string> aliases;  // common short names, only for "did you mean"
-};
-
-const std::vector<Role>& roles() {
-  static const std::vector<Role> r = {
-      {"mixing_height",
-       "the mixing height",
-       "atmosphere_boundary_layer_thickness",
-       {"blh", "pblh", "hpbl", "mixing_height", "mlh", "zi", "boundary_layer_height"}},
-      {"eastward_wind", "the eastward wind", "eastward_wind", {"u", "u10", "uwnd", "ua", "uas"}},
-      {"northward_wind", "the northward wind", "northward_wind", {"v", "v10", "vwnd", "va", "vas"}},
-      {"wind_speed", "the wind speed", "wind_speed", {"ws", "wspd", "ff", "si10", "sfcwind"}},
-      {"wind_from_direction",
-       "the wind direction",
-       "wind_from_direction",
-       {"wd", "wdir", "dd", "wind_dir", "wind_direction"}},
-      {"air_temperature", "the air temperature", "air_temperature", {"t2m", "t", "temp", "tas"}},
-      {"surface_pressure",
-       "the surface pressure",
-       "surface_air_pressure",
-       {"sp", "ps", "pres", "psfc", "surface_pressure"}},
-  };
-  return r;
-}
-
-const Role& role(const std::string& key) {
-  for (const auto& r : roles()) {
-    if (r.key == key) return r;
-  }
-  throw InternalError("unknown role " + key);
-}
-
-// The variable closest to what was sought, among data variables (not coordinates); "" if none is
-// near enough to be a useful hint.
-std::string closest(const File& f, const std::vector<std::string>& probes, bool skip_taken) {
-  // With skip_taken, variables that already carry the standard name of another role are not
-  // candidates (a role looked up by standard name).
-  std::set<std::string> taken;
-  for (const auto& r : roles()) taken.insert(r.standard_name);
-  for (const auto& [k, names] : concentration_standard_names())
-    taken.insert(names.begin(), names.end());
-  std::set<std::string> sought;
-  for (const auto& p : probes) sought.insert(lower(p));
-  std::string best;
-  std::size_t best_score = std::numeric_limits<std::size_t>::max();
-  for (const auto& v : f.vars()) {
-    if (is_coordinate(f, v)) continue;
-    const std::string sn = lower(f.standard_name(v));
-    if (skip_taken && taken.count(sn) && !sought.count(sn)) continue;
-    std::vector<std::string> names = {lower(v.name)};
-    if (!sn.empty()) names.push_back(sn);
-    for (const auto& probe : sought) {
-      for (const auto& n : names) {
-        std::size_t score = std::numeric_limits<std::size_t>::max();
-        if (n == probe) {
-          score = 0;
-        } else if (probe.size() >= 3 && n.rfind(probe, 0) == 0 &&
-                   !std::isalpha(static_cast<unsigned char>(n[probe.size()]))) {
-          score = 1;  // "pblh_m", "blh2" for "pblh", "blh"
-        } else {
-          const std::size_t d = edit_distance(probe, n);
-          if (d <= std::max<std::size_t>(1, probe.size() / 3)) score = 1 + d;
-        }
-        if (score < best_score) {
-          best_score = score;
-          best = v.name;
-        }
-      }
-    }
-  }
-  return best;
-}
-
-std::string present_and_hint(const File& f, const std::vector<std::string>& probes,
-                             bool skip_taken = false) {
-  std::string s = " among the variables present: " + join(f.var_names());
-  const std::string hint = closest(f, probes, skip_taken);
-  if (!hint.empty()) s += "; did you mean " + quoted(hint) + "?";
-  return s;
-}
-
-// Variables whose standard_name is `sn` (case-insensitive), coordinates excluded.
-std::vector<const Var*> by_standard_name(const File& f, const std::string& sn) {
-  std::vector<const Var*> r;
-  for (const auto& v : f.vars()) {
-    if (lower(f.standard_name(v)) == lower(sn)) r.push_back(&v);
-  }
-  return r;
-}
-
-// The variable for a role: mapped name first, then the standard name. nullptr when absent and
-// not required.
-const Var* find_role(const File& f, const NetcdfMetOptions& opt, const Role& r, bool required) {
-  if (auto it = opt.variables.find(r.key); it != opt.variables.end()) {
-    if (const Var* v = f.find(it->second)) return v;
-    std::vector<std::string> probes = {it->second};
-    throw InputError(f.path(),
-                     "variable " + quoted(it->second) + " (mapped to " + r.description +
-                         ") not found" + present_and_hint(f, probes),
-                     "one of the variables present");
-  }
-  const auto found = by_standard_name(f, r.standard_name);
-  if (found.size() > 1) {
-    std::vector<std::string> names;
-    for (const auto* v : found) names.push_back(v->name);
-    throw InputError(f.path(),
-                     "several variables with standard_name " + quoted(r.standard_name) + " (" +
-                         join(names) + ")",
-                     "one, or the role " + quoted(r.key) + " mapped to a variable name");
-  }
-  if (found.size() == 1) return found[0];
-  if (!required) return nullptr;
-  std::vector<std::string> probes = {r.standard_name, r.key};
-  probes.insert(probes.end(), r.aliases.begin(), r.aliases.end());
-  throw InputError(f.path(),
-                   "no variable for " + r.description + " (standard_name " +
-                       quoted(r.standard_name) + ")" + present_and_hint(f, probes, true),
-                   "a variable with that standard_name, or the role " + quoted(r.key) +
-                       " mapped to a variable name");
-}
-
-// ---------------------------------------------------------------------------------------------
+using Converter = std::function<UnitConversion(const std::string&)>;
 
 struct Loaded {
   const Var* var = nullptr;
@@ -176,7 +51,7 @@ struct Loaded {
 };
 
 Loaded load(const File& f, const Var& v, const NetcdfMetOptions& opt, const Var* mapped_time,
-            const std::function<UnitConversion(const std::string&)>& convert, bool bounds_start) {
+            const Converter& convert, bool bounds_start) {
   Loaded l;
   l.var = &v;
   l.sel = select_layout(f, v, opt, mapped_time);
@@ -185,9 +60,7 @@ Loaded load(const File& f, const Var& v, const NetcdfMetOptions& opt, const Var*
   return l;
 }
 
-std::function<UnitConversion(const std::string&)> converter_to(const File& f, const Var& v,
-                                                               std::string to,
-                                                               std::string quantity) {
+Converter converter_to(const File& f, const Var& v, std::string to, std::string quantity) {
   const std::string where = f.where(v);
   return [where, to, quantity](const std::string& from) {
     return unit_conversion(from, to, quantity, where);
@@ -213,8 +86,7 @@ std::optional<ConcentrationTarget> concentration_target(const std::string& stand
   return std::nullopt;
 }
 
-std::function<UnitConversion(const std::string&)> concentration_converter(
-    const File& f, const Var& v, const ConcentrationTarget& c) {
+Converter concentration_converter(const File& f, const Var& v, const ConcentrationTarget& c) {
   const std::string where = f.where(v);
   if (!c.mole_fraction) {
     return [where](const std::string& from) {
@@ -230,6 +102,169 @@ std::function<UnitConversion(const std::string&)> concentration_converter(
     if (auto it = ratio.find(u); it != ratio.end()) u = it->second;
     return unit_conversion(u, "1e-9", "mole fraction", where);
   };
+}
+
+// The met columns as read, before resampling: the mixing height, u and v, then the optional
+// temperature and pressure, then the extra columns, one value per time record each.
+struct MetColumns {
+  std::vector<Loaded> loaded;  // one per variable read, the mixing height first
+  std::vector<std::vector<double>> cols;
+  int ta_col = -1, ps_col = -1;
+  std::vector<MetColumn> extra;  // name and unit; values after resampling
+};
+
+// Wind as u and v, read as such or from speed and direction. Speed and direction become
+// components per cell before the cell mean (a footprint mean of directions would be wrong).
+void load_wind(const File& f, const NetcdfMetOptions& opt, const Var* mapped_time,
+               const MetVariables& mv, MetColumns& mc) {
+  auto& loaded = mc.loaded;
+  const auto mean = [](const Loaded& l) { return cell_mean(l.values.cells, l.values.weights); };
+  if (mv.components()) {
+    const Var& u = *mv.eastward_wind;
+    const Var& v = *mv.northward_wind;
+    loaded.push_back(load(f, u, opt, mapped_time, converter_to(f, u, "m/s", "speed"), false));
+    loaded.push_back(load(f, v, opt, mapped_time, converter_to(f, v, "m/s", "speed"), false));
+    mc.cols.push_back(mean(loaded[1]));
+    mc.cols.push_back(mean(loaded[2]));
+    return;
+  }
+  const Var& ws = *mv.wind_speed;
+  const Var& wd = *mv.wind_from_direction;
+  const std::string wd_where = f.where(wd);
+  loaded.push_back(load(f, ws, opt, mapped_time, converter_to(f, ws, "m/s", "speed"), false));
+  loaded.push_back(load(
+      f, wd, opt, mapped_time,
+      [wd_where](const std::string& from) { return direction_unit_to_degrees(from, wd_where); },
+      false));
+  const auto& sp = loaded[1].values;
+  const auto& dir = loaded[2].values;
+  std::vector<std::vector<double>> cu = sp.cells, cvv = sp.cells;
+  for (std::size_t c = 0; c < sp.cells.size(); ++c) {
+    for (std::size_t r = 0; r < sp.cells[c].size(); ++r) {
+      const double s = sp.cells[c][r], d = dir.cells[c][r];
+      if (std::isnan(s) || std::isnan(d)) {
+        cu[c][r] = cvv[c][r] = kNaN;
+      } else {
+        wind_components(s, d, cu[c][r], cvv[c][r]);
+      }
+    }
+  }
+  mc.cols.push_back(cell_mean(cu, sp.weights));
+  mc.cols.push_back(cell_mean(cvv, sp.weights));
+}
+
+// Each extra column by variable name, else by a unique standard_name; a known concentration is
+// converted to "ug m-3" or "ppb", anything else keeps its unit.
+void load_extra(const File& f, const NetcdfMetOptions& opt, const Var* mapped_time,
+                MetColumns& mc) {
+  for (const auto& [column, wanted] : opt.extra) {
+    const Var* ev = f.find(wanted);
+    if (!ev) {
+      const auto found = by_standard_name(f, wanted);
+      if (found.size() == 1) ev = found[0];
+      if (found.size() > 1) {
+        throw InputError(f.path(),
+                         "several variables with standard_name " + quoted(wanted) + " for column " +
+                             quoted(column),
+                         "one, or the variable named");
+      }
+    }
+    if (!ev) {
+      throw InputError(f.path(),
+                       "no variable or standard_name " + quoted(wanted) + " for column " +
+                           quoted(column) + present_and_hint(f, {wanted}),
+                       "a variable name or a CF standard_name present in the file");
+    }
+    std::string unit;
+    Converter conv;
+    if (auto target = concentration_target(f.standard_name(*ev))) {
+      unit = target->unit;
+      conv = concentration_converter(f, *ev, *target);
+    } else {
+      unit = f.text_att(ev->id, "units").value_or("");
+      conv = [](const std::string&) { return UnitConversion{}; };
+    }
+    mc.loaded.push_back(load(f, *ev, opt, mapped_time, conv, false));
+    mc.cols.push_back(cell_mean(mc.loaded.back().values.cells, mc.loaded.back().values.weights));
+    mc.extra.push_back({column, unit, {}});
+  }
+}
+
+MetColumns load_met_columns(const File& f, const NetcdfMetOptions& opt, const Var* mapped_time,
+                            const MetVariables& mv) {
+  MetColumns mc;
+  const auto mean = [](const Loaded& l) { return cell_mean(l.values.cells, l.values.weights); };
+  const Var& h = *mv.mixing_height;
+  mc.loaded.push_back(load(f, h, opt, mapped_time, converter_to(f, h, "m", "length"), false));
+  mc.cols.push_back(mean(mc.loaded[0]));
+  load_wind(f, opt, mapped_time, mv, mc);
+  if (const Var* ta = mv.air_temperature) {
+    mc.loaded.push_back(
+        load(f, *ta, opt, mapped_time, converter_to(f, *ta, "K", "temperature"), false));
+    mc.ta_col = static_cast<int>(mc.cols.size());
+    mc.cols.push_back(mean(mc.loaded.back()));
+  }
+  if (const Var* ps = mv.surface_pressure) {
+    mc.loaded.push_back(
+        load(f, *ps, opt, mapped_time, converter_to(f, *ps, "Pa", "pressure"), false));
+    mc.ps_col = static_cast<int>(mc.cols.size());
+    mc.cols.push_back(mean(mc.loaded.back()));
+  }
+  load_extra(f, opt, mapped_time, mc);
+  return mc;
+}
+
+void check_one_time_axis(const File& f, const std::vector<Loaded>& loaded) {
+  for (std::size_t i = 1; i < loaded.size(); ++i) {
+    if (loaded[0].axis.t != loaded[i].axis.t) {
+      throw InputError(f.where(*loaded[i].var),
+                       "a time axis different from that of " + quoted(loaded[0].var->name),
+                       "all met variables on one time axis");
+    }
+  }
+}
+
+MetSeries met_series(const File& f, MetColumns& mc, Hourly& hr) {
+  MetSeries m;
+  m.source = f.path();
+  m.first_stamp_utc = hr.first;
+  m.mixing_height_m = std::move(hr.columns[0]);
+  m.wind_u_m_s = std::move(hr.columns[1]);
+  m.wind_v_m_s = std::move(hr.columns[2]);
+  if (mc.ta_col >= 0) {
+    m.air_temperature_K = std::move(hr.columns[static_cast<std::size_t>(mc.ta_col)]);
+  }
+  if (mc.ps_col >= 0) {
+    m.surface_pressure_Pa = std::move(hr.columns[static_cast<std::size_t>(mc.ps_col)]);
+  }
+  const std::size_t first_extra = mc.cols.size() - mc.extra.size();
+  for (std::size_t e = 0; e < mc.extra.size(); ++e) {
+    mc.extra[e].values = std::move(hr.columns[first_extra + e]);
+  }
+  m.extra = std::move(mc.extra);
+  m.filled.assign(m.size(), 0);
+  m.source_line = hr.record;
+  return m;
+}
+
+void fill_info(const MetVariables& mv, const Loaded& first, const Hourly& hr,
+               NetcdfReadInfo& info) {
+  info.role_variable.clear();
+  info.role_variable["mixing_height"] = mv.mixing_height->name;
+  if (mv.components()) {
+    info.role_variable["eastward_wind"] = mv.eastward_wind->name;
+    info.role_variable["northward_wind"] = mv.northward_wind->name;
+  } else {
+    info.role_variable["wind_speed"] = mv.wind_speed->name;
+    info.role_variable["wind_from_direction"] = mv.wind_from_direction->name;
+  }
+  if (mv.air_temperature) info.role_variable["air_temperature"] = mv.air_temperature->name;
+  if (mv.surface_pressure) info.role_variable["surface_pressure"] = mv.surface_pressure->name;
+  info.role_variable["time"] = first.axis.variable;
+  info.layout = first.sel.layout;
+  info.time_step = hr.rule;
+  info.records = first.axis.t.size();
+  info.time_bounds_label = first.axis.bounds_label;
 }
 
 }  // namespace
@@ -272,7 +307,7 @@ CoarseStepRule parse_coarse_step_rule(std::string_view text, std::string_view wh
 const std::vector<std::string>& netcdf_met_roles() {
   static const std::vector<std::string> r = [] {
     std::vector<std::string> v;
-    for (const auto& role : roles()) v.push_back(role.key);
+    for (const auto& role : netcdf::roles()) v.push_back(role.key);
     v.emplace_back("time");
     return v;
   }();
@@ -283,172 +318,14 @@ MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
                           NetcdfReadInfo* info) {
   const File f(path, opt.display_name);
   refuse_ragged(f);
-  const auto& known = netcdf_met_roles();
-  for (const auto& [r, name] : opt.variables) {
-    if (std::find(known.begin(), known.end(), r) == known.end()) {
-      std::string hint;
-      std::size_t best = 3;  // suggest only within two edits
-      for (const auto& k : known) {
-        const std::size_t d = edit_distance(r, k);
-        if (d < best) {
-          best = d;
-          hint = "; did you mean " + quoted(k) + "?";
-        }
-      }
-      throw InputError(f.path(), "unknown variable role " + quoted(r) + hint,
-                       "one of " + join(known));
-    }
-  }
-  const Var* mapped_time = nullptr;
-  if (auto it = opt.variables.find("time"); it != opt.variables.end()) {
-    mapped_time = f.find(it->second);
-    if (!mapped_time) {
-      throw InputError(f.path(),
-                       "variable " + quoted(it->second) + " (mapped to the time) not found" +
-                           present_and_hint(f, {it->second}),
-                       "one of the variables present");
-    }
-  }
-  const Var* h = find_role(f, opt, role("mixing_height"), true);
-  // Components unless the caller mapped only the speed/direction form.
-  const auto mapped = [&](const char* r) { return opt.variables.count(r) > 0; };
-  const bool speed_form = (mapped("wind_speed") || mapped("wind_from_direction")) &&
-                          !mapped("eastward_wind") && !mapped("northward_wind");
-  const Var* u = speed_form ? nullptr : find_role(f, opt, role("eastward_wind"), false);
-  const Var* v = speed_form ? nullptr : find_role(f, opt, role("northward_wind"), false);
-  const Var* ws = nullptr;
-  const Var* wd = nullptr;
-  if (!u || !v) {
-    ws = find_role(f, opt, role("wind_speed"), false);
-    wd = find_role(f, opt, role("wind_from_direction"), false);
-    if (!ws || !wd) {
-      // Name what is missing from the more complete of the two forms.
-      if (u || v) find_role(f, opt, role(u ? "northward_wind" : "eastward_wind"), true);
-      find_role(f, opt, role(ws ? "wind_from_direction" : "wind_speed"), true);
-    }
-  }
-  const Var* ta = find_role(f, opt, role("air_temperature"), false);
-  const Var* ps = find_role(f, opt, role("surface_pressure"), false);
-
-  std::vector<Loaded> loaded;
-  loaded.push_back(load(f, *h, opt, mapped_time, converter_to(f, *h, "m", "length"), false));
-  std::vector<double> col_u, col_v;
-  const auto mean = [](const Loaded& l) { return cell_mean(l.values.cells, l.values.weights); };
-  if (u && v) {
-    loaded.push_back(load(f, *u, opt, mapped_time, converter_to(f, *u, "m/s", "speed"), false));
-    loaded.push_back(load(f, *v, opt, mapped_time, converter_to(f, *v, "m/s", "speed"), false));
-    col_u = mean(loaded[1]);
-    col_v = mean(loaded[2]);
-  } else {
-    const std::string wd_where = f.where(*wd);
-    loaded.push_back(load(f, *ws, opt, mapped_time, converter_to(f, *ws, "m/s", "speed"), false));
-    loaded.push_back(load(
-        f, *wd, opt, mapped_time,
-        [wd_where](const std::string& from) { return direction_unit_to_degrees(from, wd_where); },
-        false));
-    // Per cell to components, then averaged (a footprint mean of directions would be wrong).
-    const auto& sp = loaded[1].values;
-    const auto& dir = loaded[2].values;
-    std::vector<std::vector<double>> cu = sp.cells, cvv = sp.cells;
-    for (std::size_t c = 0; c < sp.cells.size(); ++c) {
-      for (std::size_t r = 0; r < sp.cells[c].size(); ++r) {
-        const double s = sp.cells[c][r], d = dir.cells[c][r];
-        if (std::isnan(s) || std::isnan(d)) {
-          cu[c][r] = cvv[c][r] = kNaN;
-        } else {
-          wind_components(s, d, cu[c][r], cvv[c][r]);
-        }
-      }
-    }
-    col_u = cell_mean(cu, sp.weights);
-    col_v = cell_mean(cvv, sp.weights);
-  }
-  std::vector<std::vector<double>> cols = {mean(loaded[0]), col_u, col_v};
-  int ta_col = -1, ps_col = -1;
-  if (ta) {
-    loaded.push_back(
-        load(f, *ta, opt, mapped_time, converter_to(f, *ta, "K", "temperature"), false));
-    ta_col = static_cast<int>(cols.size());
-    cols.push_back(mean(loaded.back()));
-  }
-  if (ps) {
-    loaded.push_back(load(f, *ps, opt, mapped_time, converter_to(f, *ps, "Pa", "pressure"), false));
-    ps_col = static_cast<int>(cols.size());
-    cols.push_back(mean(loaded.back()));
-  }
-  std::vector<MetColumn> extra;
-  for (const auto& [column, wanted] : opt.extra) {
-    const Var* ev = f.find(wanted);
-    if (!ev) {
-      const auto found = by_standard_name(f, wanted);
-      if (found.size() == 1) ev = found[0];
-      if (found.size() > 1) {
-        throw InputError(f.path(),
-                         "several variables with standard_name " + quoted(wanted) + " for column " +
-                             quoted(column),
-                         "one, or the variable named");
-      }
-    }
-    if (!ev) {
-      throw InputError(f.path(),
-                       "no variable or standard_name " + quoted(wanted) + " for column " +
-                           quoted(column) + present_and_hint(f, {wanted}),
-                       "a variable name or a CF standard_name present in the file");
-    }
-    std::string unit;
-    std::function<UnitConversion(const std::string&)> conv;
-    if (auto target = concentration_target(f.standard_name(*ev))) {
-      unit = target->unit;
-      conv = concentration_converter(f, *ev, *target);
-    } else {
-      unit = f.text_att(ev->id, "units").value_or("");
-      conv = [](const std::string&) { return UnitConversion{}; };
-    }
-    loaded.push_back(load(f, *ev, opt, mapped_time, conv, false));
-    cols.push_back(mean(loaded.back()));
-    extra.push_back({column, unit, {}});
-  }
-  for (std::size_t i = 1; i < loaded.size(); ++i) {
-    if (loaded[0].axis.t != loaded[i].axis.t) {
-      throw InputError(f.where(*loaded[i].var),
-                       "a time axis different from that of " + quoted(loaded[0].var->name),
-                       "all met variables on one time axis");
-    }
-  }
-  Hourly hr = to_hourly(f, loaded[0].axis, cols, opt.sub_hourly, opt.coarse);
-  MetSeries m;
-  m.source = f.path();
-  m.first_stamp_utc = hr.first;
-  m.mixing_height_m = std::move(hr.columns[0]);
-  m.wind_u_m_s = std::move(hr.columns[1]);
-  m.wind_v_m_s = std::move(hr.columns[2]);
-  if (ta_col >= 0) m.air_temperature_K = std::move(hr.columns[static_cast<std::size_t>(ta_col)]);
-  if (ps_col >= 0) m.surface_pressure_Pa = std::move(hr.columns[static_cast<std::size_t>(ps_col)]);
-  const std::size_t first_extra = cols.size() - extra.size();
-  for (std::size_t e = 0; e < extra.size(); ++e) {
-    extra[e].values = std::move(hr.columns[first_extra + e]);
-  }
-  m.extra = std::move(extra);
-  m.filled.assign(m.size(), 0);
-  m.source_line = hr.record;
-  if (info) {
-    info->role_variable.clear();
-    info->role_variable["mixing_height"] = h->name;
-    if (u && v) {
-      info->role_variable["eastward_wind"] = u->name;
-      info->role_variable["northward_wind"] = v->name;
-    } else {
-      info->role_variable["wind_speed"] = ws->name;
-      info->role_variable["wind_from_direction"] = wd->name;
-    }
-    if (ta) info->role_variable["air_temperature"] = ta->name;
-    if (ps) info->role_variable["surface_pressure"] = ps->name;
-    info->role_variable["time"] = loaded[0].axis.variable;
-    info->layout = loaded[0].sel.layout;
-    info->time_step = hr.rule;
-    info->records = loaded[0].axis.t.size();
-    info->time_bounds_label = loaded[0].axis.bounds_label;
-  }
+  netcdf::check_role_names(f, opt);
+  const Var* mapped_time = netcdf::mapped_time_variable(f, opt);
+  const MetVariables mv = netcdf::find_met_variables(f, opt);
+  MetColumns mc = load_met_columns(f, opt, mapped_time, mv);
+  check_one_time_axis(f, mc.loaded);
+  Hourly hr = to_hourly(f, mc.loaded[0].axis, mc.cols, opt.sub_hourly, opt.coarse);
+  MetSeries m = met_series(f, mc, hr);
+  if (info) fill_info(mv, mc.loaded[0], hr, *info);
   return m;
 }
 
@@ -493,9 +370,7 @@ std::vector<std::pair<std::string, HourlySeries>> read_concentrations_netcdf(
   for (const auto& [key, v] : chosen) {
     const auto target = concentration_target(f.standard_name(*v));
     std::string unit = f.text_att(v->id, "units").value_or("");
-    std::function<UnitConversion(const std::string&)> conv = [](const std::string&) {
-      return UnitConversion{};
-    };
+    Converter conv = [](const std::string&) { return UnitConversion{}; };
     if (target) {
       unit = target->unit;
       conv = concentration_converter(f, *v, *target);
