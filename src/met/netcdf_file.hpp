@@ -1,8 +1,9 @@
 // Private to the NetCDF met reader: one NetCDF file open for reading through NetCDF-C, its root
 // group's dimensions, variables and attributes, and a variable's values unpacked.
 //
-// Every NetCDF-C status other than NC_NOERR becomes an InputError naming the file (as shown in
-// messages) and what was being read; the file is closed when the File goes out of scope.
+// A failing NetCDF-C call becomes an InputError naming the file (as shown in messages) and what
+// was being read; an absent attribute is not a failure. The file is closed when the File goes
+// out of scope.
 //
 // Unpacking (CF Conventions 8.1 and 2.5.1, NetCDF User Guide): _FillValue and missing_value
 // (compared with the packed values), values outside valid_min/valid_max/valid_range, and the
