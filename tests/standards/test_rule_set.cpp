@@ -174,7 +174,7 @@ TEST_CASE("the rules directory can be given explicitly") {
   CHECK(rules_directory(std::filesystem::path("/x/y")) == std::filesystem::path("/x/y"));
 }
 
-TEST_CASE("a shipped rule set is named by its place in lidbox's data and a user's file by its path") {
+TEST_CASE("a shipped rule set is named as lidbox data and a user's file by its path") {
   // Reports must read the same wherever lidbox is checked out or installed.
   CHECK(load_rule_set("us-naaqs", kRulesDir).path == "lidbox data: rules/us-naaqs.toml");
   CHECK(load_rule_set("eu-2008", kRulesDir).path == "lidbox data: rules/eu-2008-50.toml");

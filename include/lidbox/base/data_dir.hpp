@@ -23,10 +23,10 @@ namespace lidbox {
 
 // The inputs of the lookup, so that it can be tested on folders of the test's own making.
 struct DataDirLookup {
-  std::optional<std::string> env_data_dir;  // $LIDBOX_DATA_DIR; nullopt when unset or empty
-  std::filesystem::path executable;         // the running program; empty when unknown
+  std::optional<std::string> env_data_dir;   // $LIDBOX_DATA_DIR; nullopt when unset or empty
+  std::filesystem::path executable;          // the running program; empty when unknown
   std::filesystem::path executable_to_data;  // relative, "../share/lidbox"
-  std::filesystem::path source_data;          // "<source dir>/src/data"
+  std::filesystem::path source_data;         // "<source dir>/src/data"
 };
 
 // The lookup of the running process: the environment, /proc/self/exe and the compiled-in paths.
