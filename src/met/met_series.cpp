@@ -108,9 +108,16 @@ void fill_gaps(MetSeries& met, int max_gap_hours) {
 
 void validate_met(const MetSeries& met) {
   for (std::size_t i = 0; i < met.size(); ++i) {
-    const std::string where =
-        met.source + (met.source_line[i] > 0 ? ":" + std::to_string(met.source_line[i]) : "") +
-        " (" + format_utc(met.stamp(i)) + ")";
+    // Appended piece by piece: g++ 12 at -O3 reports a bogus -Wrestrict overlap for
+    // "literal" + std::string&& (GCC bug 105329).
+    std::string where = met.source;
+    if (met.source_line[i] > 0) {
+      where += ':';
+      where += std::to_string(met.source_line[i]);
+    }
+    where += " (";
+    where += format_utc(met.stamp(i));
+    where += ')';
     const double h = met.mixing_height_m[i];
     if (!std::isfinite(h) || h <= 0.0) {
       throw InputError(where, "mixing height " + format_number(h) + " m",

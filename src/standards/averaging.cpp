@@ -299,7 +299,11 @@ std::vector<PeriodMean> fold_periods(std::int64_t first_day, std::int64_t end_da
 std::vector<PeriodMean> period_means_of_hours(const HourlySeries& series, int lst_offset_s,
                                               Period period, double min_fraction) {
   // Per-day sums first (one pass over the hours), then periods over days.
-  const auto [first, end] = day_span(series, lst_offset_s);
+  // Named variables, not a structured binding: the lambda below captures `first`, which C++17
+  // forbids for a binding and clang 14 refuses even in C++20.
+  const auto span = day_span(series, lst_offset_s);
+  const std::int64_t first = span.first;
+  const std::int64_t end = span.second;
   const auto days = static_cast<std::size_t>(end - first);
   std::vector<double> sum(days, 0.0);
   std::vector<int> count(days, 0);

@@ -6,6 +6,7 @@
 #include <set>
 #include <sstream>
 
+#include "lidbox/base/data_dir.hpp"
 #include "lidbox/base/error.hpp"
 #include "lidbox/base/text.hpp"
 #include "lidbox/base/toml_table.hpp"
@@ -389,7 +390,7 @@ RuleSet load_rule_set_file(const std::filesystem::path& path) {
 std::filesystem::path rules_directory(const std::optional<std::filesystem::path>& explicit_dir) {
   if (explicit_dir) return *explicit_dir;
   if (const char* env = std::getenv("LIDBOX_RULES_DIR"); env && *env) return env;
-  return std::filesystem::path(LIDBOX_SOURCE_DIR) / "src" / "data" / "rules";
+  return data_dir("rules");
 }
 
 std::vector<std::string> list_rule_sets(const std::filesystem::path& dir) {
@@ -408,15 +409,22 @@ RuleSet load_rule_set(std::string_view name_or_path, const std::filesystem::path
       (s.size() > 5 && s.compare(s.size() - 5, 5, ".toml") == 0)) {
     return load_rule_set_file(s);
   }
+  // A shipped file is named by its place in lidbox's data, so that reports read the same wherever
+  // lidbox is checked out or installed; a file from the user's own folder keeps its path.
+  auto load_labelled = [](const std::filesystem::path& file) {
+    RuleSet rs = load_rule_set_file(file);
+    if (auto label = shipped_data_label(file, "rules")) rs.path = *label;
+    return rs;
+  };
   const auto file = dir / (s + ".toml");
-  if (std::filesystem::exists(file)) return load_rule_set_file(file);
+  if (std::filesystem::exists(file)) return load_labelled(file);
   const auto ids = list_rule_sets(dir);
   // A unique beginning is enough ("eu-2008" for "eu-2008-50").
   std::vector<std::string> starting;
   for (const auto& id : ids) {
     if (id.rfind(s, 0) == 0) starting.push_back(id);
   }
-  if (starting.size() == 1 && !s.empty()) return load_rule_set_file(dir / (starting[0] + ".toml"));
+  if (starting.size() == 1 && !s.empty()) return load_labelled(dir / (starting[0] + ".toml"));
   throw InputError("rule set \"" + s + "\"", "not found in " + dir.string(),
                    (ids.empty() ? std::string("a rule-set file path") : "one of " + join(ids)) +
                        did_you_mean(s, ids));

@@ -14,7 +14,6 @@ using lidbox::test::scratch_dir;
 
 namespace {
 
-constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 const UtcSeconds k20260105 = 20458LL * 86400;  // 2026-01-05T00:00Z (days_from_civil)
 
 std::string error_of(const std::string& path, const NetcdfMetOptions& opt = {}) {

@@ -189,6 +189,20 @@ TEST_CASE("the rules directory can be given explicitly") {
   CHECK(rules_directory(std::filesystem::path("/x/y")) == std::filesystem::path("/x/y"));
 }
 
+TEST_CASE("a shipped rule set is named as lidbox data and a user's file by its path") {
+  // Reports must read the same wherever lidbox is checked out or installed.
+  CHECK(load_rule_set("us-naaqs", kRulesDir).path == "lidbox data: rules/us-naaqs.toml");
+  CHECK(load_rule_set("eu-2008", kRulesDir).path == "lidbox data: rules/eu-2008-50.toml");
+  const std::string by_path = (kRulesDir / "who-2021.toml").string();
+  CHECK(load_rule_set(by_path, kRulesDir).path == by_path);
+  const auto own = std::filesystem::path(LIDBOX_BINARY_DIR) / "rule-set-label-test";
+  std::filesystem::create_directories(own);
+  std::filesystem::copy_file(kRulesDir / "who-2021.toml", own / "who-2021.toml",
+                             std::filesystem::copy_options::overwrite_existing);
+  CHECK(load_rule_set("who-2021", own).path == (own / "who-2021.toml").string());
+  std::filesystem::remove_all(own);
+}
+
 TEST_CASE("several rule sets load in order and a repeated one is refused") {
   const auto sets = load_rule_sets({"us-naaqs", "eu-2008"}, kRulesDir);
   REQUIRE(sets.size() == 2);

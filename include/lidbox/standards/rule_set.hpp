@@ -129,7 +129,7 @@ struct RuleSet {
   std::string legal_date;
   std::string note;
   ReferenceConditions reference;
-  std::string path;  // where it was read from
+  std::string path;  // as reports name it: the path given, or "lidbox data: rules/<id>.toml"
   std::vector<Limit> limits;
   std::vector<AlertRule> alerts;
 };
@@ -139,12 +139,12 @@ RuleSet parse_rule_set(std::string_view toml_text, std::string_view path);
 // Reads and parses a file; an unreadable file is an InputError naming it.
 RuleSet load_rule_set_file(const std::filesystem::path& path);
 
-// The folder holding the shipped rule sets: `explicit_dir` if given, else the environment
-// variable LIDBOX_RULES_DIR, else <source dir>/src/data/rules as compiled in (LIDBOX_SOURCE_DIR).
+// The folder of rule sets named by id: `explicit_dir` if given, else the environment variable
+// LIDBOX_RULES_DIR, else the shipped ones, data_dir("rules") (data_dir.hpp).
 std::filesystem::path rules_directory(const std::optional<std::filesystem::path>& explicit_dir);
 // Ids of the rule sets in a folder (file stems of *.toml), sorted.
 std::vector<std::string> list_rule_sets(const std::filesystem::path& dir);
-// A shipped rule set by id ("us-naaqs"), or a file when `name_or_path` ends in ".toml" or holds
+// A rule set by id ("us-naaqs") from `dir`, or a file when `name_or_path` ends in ".toml" or holds
 // a '/'. A unique beginning of an id is enough ("eu-2008"). An unknown id is an InputError
 // listing the ids with a "did you mean" hint.
 RuleSet load_rule_set(std::string_view name_or_path, const std::filesystem::path& dir);
