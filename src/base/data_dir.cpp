@@ -26,6 +26,15 @@ DataDirLookup process_data_dir_lookup() {
 
 fs::path find_data_dir(std::string_view kind, const DataDirLookup& lookup) {
   std::error_code ec;
+  std::vector<std::string> looked;
+  // The installed data first: a binary reads the data of its own version, whatever a variable
+  // left over from another installation says.
+  if (!lookup.executable.empty()) {
+    const fs::path installed =
+        (lookup.executable.parent_path() / lookup.executable_to_data).lexically_normal() / kind;
+    if (fs::is_directory(installed, ec)) return installed;
+    looked.push_back(installed.string());
+  }
   if (lookup.env_data_dir) {
     if (!fs::is_directory(*lookup.env_data_dir, ec)) {
       throw InputError("LIDBOX_DATA_DIR", "\"" + *lookup.env_data_dir + "\" is not a folder",
@@ -33,13 +42,6 @@ fs::path find_data_dir(std::string_view kind, const DataDirLookup& lookup) {
                            "/ and the like), or the variable unset");
     }
     return fs::path(*lookup.env_data_dir) / kind;
-  }
-  std::vector<std::string> looked;
-  if (!lookup.executable.empty()) {
-    const fs::path installed =
-        (lookup.executable.parent_path() / lookup.executable_to_data).lexically_normal() / kind;
-    if (fs::is_directory(installed, ec)) return installed;
-    looked.push_back(installed.string());
   }
   const fs::path source = lookup.source_data / kind;
   if (fs::is_directory(source, ec)) return source;

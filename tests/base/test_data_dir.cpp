@@ -49,9 +49,16 @@ TEST_CASE("an installed program finds the data beside its bin folder before the 
   CHECK(find_data_dir("rules", t.lookup()) == t.root / "prefix" / "share" / "lidbox" / "rules");
 }
 
-TEST_CASE("LIDBOX_DATA_DIR wins over the installed and the source data") {
+TEST_CASE("an installed program reads its own data even when LIDBOX_DATA_DIR is set") {
   const Tree t;
   t.install();
+  DataDirLookup l = t.lookup();
+  l.env_data_dir = (t.root / "own").string();
+  CHECK(find_data_dir("rules", l) == t.root / "prefix" / "share" / "lidbox" / "rules");
+}
+
+TEST_CASE("a program without installed data takes LIDBOX_DATA_DIR before the source tree") {
+  const Tree t;
   DataDirLookup l = t.lookup();
   l.env_data_dir = (t.root / "own").string();
   CHECK(find_data_dir("rules", l) == t.root / "own" / "rules");

@@ -9,8 +9,9 @@
    definition of the international foot.
 3. The INSTALLED binary runs a copy of the demo in a folder outside the checkout, with no LIDBOX_*
    variable set: exit 0, the shipped rule sets found in P/share/lidbox/rules and named in the
-   reports by their place in lidbox's data, not by a path of this machine. LIDBOX_RULES_DIR and
-   LIDBOX_DATA_DIR, when set, take the place of the installed data.
+   reports by their place in lidbox's data, not by a path of this machine. LIDBOX_RULES_DIR takes
+   the place of the installed rules; LIDBOX_DATA_DIR serves a binary without installed data
+   beside it (the build tree's), while an installed binary keeps the data of its own version.
 
 ctest runs it as: /usr/bin/python3 test_install.py <lidbox binary> <source dir>, in the build dir.
 """
@@ -150,8 +151,8 @@ def test_installed_run(prefix, tmp):
         f.write(case.replace('"who-2021"', '"who-2099"'))
     expected_ids = "eu-2008-50, eu-2024-2881, us-naaqs, who-2021"
 
-    def refused(env, want, what):
-        p = run([binary, "run", "-q", "cindervale.toml", "-o", "out2"], False, cwd=demo, env=env)
+    def refused(env, want, what, program=binary):
+        p = run([program, "run", "-q", "cindervale.toml", "-o", "out2"], False, cwd=demo, env=env)
         check(p.returncode == 2 and p.stderr == "lidbox: error: " + want + "\n",
               "%s: exit %d, stderr %r" % (what, p.returncode, p.stderr))
         check(not os.path.exists(os.path.join(demo, "out2")), what + ": nothing written")
@@ -172,14 +173,22 @@ def test_installed_run(prefix, tmp):
     os.makedirs(os.path.join(own_data, "rules"))
     shutil.copy(os.path.join(prefix, "share", "lidbox", "rules", "eu-2008-50.toml"),
                 os.path.join(own_data, "rules"))
+    # The installed binary reads the data of its own version, whatever LIDBOX_DATA_DIR says.
+    refused(dict(clean_env(), LIDBOX_DATA_DIR=own_data),
+            'rule set "who-2099": not found in %s; expected one of eu-2008-50, eu-2024-2881, '
+            'us-naaqs, who-2021 (did you mean "who-2021"?)'
+            % os.path.join(prefix, "share", "lidbox", "rules"),
+            "an installed binary keeps its own data when LIDBOX_DATA_DIR is set")
+    # A binary without installed data beside it (the build tree's) takes LIDBOX_DATA_DIR.
+    build_binary = os.path.abspath(sys.argv[1])
     refused(dict(clean_env(), LIDBOX_DATA_DIR=own_data),
             'rule set "us-naaqs": not found in %s; expected one of eu-2008-50'
             % os.path.join(own_data, "rules"),
-            "LIDBOX_DATA_DIR takes the place of the installed data folder")
+            "LIDBOX_DATA_DIR takes the place of the source tree's data", build_binary)
     refused(dict(clean_env(), LIDBOX_DATA_DIR=os.path.join(tmp, "nowhere")),
             'LIDBOX_DATA_DIR: "%s" is not a folder; expected a folder holding lidbox\'s data '
             '(rules/ and the like), or the variable unset' % os.path.join(tmp, "nowhere"),
-            "LIDBOX_DATA_DIR naming no folder is refused")
+            "LIDBOX_DATA_DIR naming no folder is refused", build_binary)
 
 def main():
     c = cache()

@@ -2,12 +2,15 @@
 // src/data/ of the source tree, installed as <prefix>/share/lidbox/. The one place that knows.
 //
 // The data folder is, in this order:
-//   1. $LIDBOX_DATA_DIR when set and not empty: the user's choice wins, and a value that names no
-//      folder is an InputError rather than a silent fall-through;
-//   2. the installed folder beside the running program: <dir of /proc/self/exe>/../share/lidbox
+//   1. the installed folder beside the running program: <dir of /proc/self/exe>/../share/lidbox
 //      (the relative part as configured: CMAKE_INSTALL_BINDIR to CMAKE_INSTALL_DATADIR/lidbox),
-//      used when it holds the kind asked for;
+//      used when it holds the kind asked for, so an installed binary always reads the data of
+//      its own version;
+//   2. $LIDBOX_DATA_DIR when set and not empty (a binary without installed data: a build tree, a
+//      copied binary); a value that names no folder is an InputError, not a silent fall-through;
 //   3. <source dir>/src/data as compiled in (LIDBOX_SOURCE_DIR): a program in its build tree.
+// A different folder of rule sets for one run is the case's [standards] rules_dir or
+// $LIDBOX_RULES_DIR (rule_set.hpp), which take the place of the data's rules/.
 // None of them holding the kind is an InputError naming the places looked at.
 //
 // Reports name a shipped file by a label that does not depend on where lidbox is checked out or
