@@ -167,7 +167,8 @@ std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, Aqi
   auto has = [&](const char* p) { return series.count(p) && series.at(p).size() > 0; };
   if (has("O3")) {
     const HourlySeries& s = series.at("O3");
-    add(daily_max_of_windows(running_means(s, 8, 6), lst_offset_s, kUsOzoneDayWindows),
+    add(daily_max_of_windows(running_means(s, 8, 6, WindowSpan::reaching_into_series), lst_offset_s,
+                             kUsOzoneDayWindows),
         factor_for("O3", AqiInput::o3_8h), AqiInput::o3_8h);
     add(daily_max_1h(s, lst_offset_s), factor_for("O3", AqiInput::o3_1h), AqiInput::o3_1h);
   }
@@ -180,7 +181,8 @@ std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, Aqi
         AqiInput::pm10_24h);
   }
   if (has("CO")) {
-    add(daily_max_of_windows(running_means(series.at("CO"), 8, 6), lst_offset_s, {0, 24, 18}),
+    add(daily_max_of_windows(running_means(series.at("CO"), 8, 6, WindowSpan::reaching_into_series),
+                             lst_offset_s, {0, 24, 18}),
         factor_for("CO", AqiInput::co_8h), AqiInput::co_8h);
   }
   if (has("SO2")) {
