@@ -3,8 +3,8 @@
 #include <cmath>
 #include <map>
 
-#include "lidbox/standards/averaging.hpp"
 #include "lidbox/base/error.hpp"
+#include "lidbox/standards/averaging.hpp"
 
 namespace lidbox {
 
@@ -147,12 +147,30 @@ const char* aqi_category(int aqi) {
   return "Beyond the AQI";
 }
 
+namespace {
+
+// The conservative reading of the 1-h SO2 footnote for a 1-h value above the 1-h scale (see
+// aqi.hpp): the sub-index is held at the top of the 1-h scale, AQI 200; the 24-h mean, added
+// separately, decides any higher value.
+std::optional<SubIndex> so2_1h_above_scale(double ppb, AqiTable table) {
+  const auto rows = aqi_breakpoints(AqiInput::so2_1h, table);
+  const double c =
+      apply_rounding(ppb, {RoundingMode::truncate, truncation_decimals(AqiInput::so2_1h)});
+  if (rows.empty() || std::isnan(c) || !(c > rows.back().bp_hi)) return std::nullopt;
+  SubIndex s{AqiInput::so2_1h, c, rows.back().i_hi, false};
+  s.held_at_scale_top = true;
+  return s;
+}
+
+}  // namespace
+
 std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, AqiTable table) {
   std::map<std::int64_t, DailyAqi> days;
   auto add = [&](const DailyValues& dv, double factor, AqiInput input) {
     for (std::size_t d = 0; d < dv.size(); ++d) {
       if (!dv.complete(d)) continue;
-      const auto sub = aqi_sub_index(input, dv.value[d] * factor, table);
+      auto sub = aqi_sub_index(input, dv.value[d] * factor, table);
+      if (!sub && input == AqiInput::so2_1h) sub = so2_1h_above_scale(dv.value[d] * factor, table);
       if (!sub) continue;
       DailyAqi& day = days[dv.day(d)];
       day.day = dv.day(d);
