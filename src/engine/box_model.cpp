@@ -273,17 +273,21 @@ void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour,
   constexpr double T = 3600.0;
   const double split = F.clock_split_s > 0 ? static_cast<double>(F.clock_split_s) : T;
   const double fa_factor = options_.residual_wind_factor;
-  auto accumulate_met = [&](double dt, double h, double u, double v, double speed, double f) {
+  // h and speed are the values used (after the floors); the ventilation coefficient is u H of
+  // the met as given (h_met, u, v), so that the floors do not hide the poorest hours.
+  auto accumulate_met = [&](double dt, double h, double h_met, double u, double v, double speed,
+                            double f) {
     out.mixing_height_mean_m += h * dt / T;
     out.wind_u_mean_m_s += u * dt / T;
     out.wind_v_mean_m_s += v * dt / T;
     out.wind_speed_mean_m_s += speed * dt / T;
     out.flushing_rate_mean_per_s += f * dt / T;
-    out.ventilation_mean_m2_s += speed * h * dt / T;
+    out.ventilation_mean_m2_s += std::hypot(u, v) * h_met * dt / T;
   };
 
   if (options_.reading == MetReading::hour_average) {
-    const double h = floored_height(F.mixing_height_m[hour], out);
+    const double h_met = F.mixing_height_m[hour];
+    const double h = floored_height(h_met, out);
     move_lid(s, h, F, hour, out);
     const double u = F.wind_u_m_s[hour];
     const double v = F.wind_v_m_s[hour];
@@ -294,7 +298,7 @@ void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour,
     exact_step(s, split, f, fa, F, hour, 0, out);
     if (split < T) exact_step(s, T - split, f, fa, F, hour, 1, out);
     out.substeps = split < T ? 2 : 1;
-    accumulate_met(T, h, u, v, speed, f);
+    accumulate_met(T, h, h_met, u, v, speed, f);
   } else {
     const double h0 = F.mixing_height_m[hour], h1 = F.mixing_height_m[hour + 1];
     const double u0 = F.wind_u_m_s[hour], u1 = F.wind_u_m_s[hour + 1];
@@ -320,13 +324,17 @@ void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour,
     for (int half = 0; half < 2; ++half) {
       const double t1 = seg_end[half];
       if (t1 <= t0) continue;
-      const int m = std::max(1, static_cast<int>(std::lround(n * (t1 - t0) / T)));
+      // Rounded up, so that no sub-step is longer than the controls allow (integer arithmetic:
+      // the segment lengths are whole seconds).
+      const long seg_s = std::lround(t1 - t0);
+      const int m = static_cast<int>(std::max(1L, (static_cast<long>(n) * seg_s + 3599) / 3600));
       const double dt = (t1 - t0) / m;
       for (int k = 0; k < m; ++k) {
         const double ta = t0 + k * dt;
         const double tm = (ta + 0.5 * dt) / T;
         const double te = (ta + dt) / T;
-        const double hm = floored_height(h0 + (h1 - h0) * tm, out);
+        const double hm_met = h0 + (h1 - h0) * tm;
+        const double hm = floored_height(hm_met, out);
         const double um = u0 + (u1 - u0) * tm;
         const double vm = v0 + (v1 - v0) * tm;
         move_lid(s, hm, F, hour, out);
@@ -336,7 +344,7 @@ void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour,
         if (fa_factor > 0.0) fa = geometry_.flushing_rate(um * fa_factor, vm * fa_factor);
         exact_step(s, dt, f, fa, F, hour, half, out);
         move_lid(s, floored_height(h0 + (h1 - h0) * te, out), F, hour, out);
-        accumulate_met(dt, hm, um, vm, speed, f);
+        accumulate_met(dt, hm, hm_met, um, vm, speed, f);
         ++out.substeps;
       }
       t0 = t1;

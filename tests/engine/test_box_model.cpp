@@ -394,3 +394,53 @@ TEST_CASE("random scenarios: budgets close, concentrations stay non-negative, pa
   MESSAGE("worst relative closure " << worst_closure);
   CHECK(checked == 1000);
 }
+
+TEST_CASE("the ventilation coefficient is u H of the met as given, not of the floored values") {
+  // Definition, physics note section 7: VC = u H. A 0.1 m/s wind under a 100 m lid ventilates
+  // 10 m2/s; the calm floor (0.5 m/s) must not turn it into 50. A 2 m/s wind under a 30 m lid
+  // (below the 50 m floor) ventilates 60 m2/s, not 100. Both readings.
+  Footprint fp{10000.0, 10000.0, 90.0};
+  for (MetReading reading : {MetReading::hour_average, MetReading::instantaneous}) {
+    EngineOptions opt;
+    opt.reading = reading;
+    BoxEngine engine(fp, {{0.0, 0.0, 0.0}}, 0, opt);
+    Forcing F = constant_forcing(1, reading, 100.0, 0.0, 0.1, 0.0, 0.0, {});
+    BoxState s = engine.make_state(100.0);
+    HourResult r = engine.make_result();
+    engine.step_hour(s, F, 0, r);
+    CHECK(r.calm_floor);
+    CHECK(r.wind_speed_mean_m_s == doctest::Approx(0.5).epsilon(1e-14));  // the speed used
+    CHECK(r.ventilation_mean_m2_s == doctest::Approx(10.0).epsilon(1e-14));
+    Forcing G = constant_forcing(1, reading, 30.0, 2.0, 0.0, 0.0, 0.0, {});
+    BoxState t = engine.make_state(30.0);
+    engine.step_hour(t, G, 0, r);
+    CHECK(r.lid_floor);
+    CHECK(r.mixing_height_mean_m == doctest::Approx(50.0).epsilon(1e-14));  // the lid used
+    CHECK(r.ventilation_mean_m2_s == doctest::Approx(60.0).epsilon(1e-14));
+  }
+}
+
+TEST_CASE("sub-steps around a clock split are rounded up, never longer than the controls allow") {
+  // Common practice (no source): a sub-step count is a ceiling. Three sub-steps per hour allow
+  // 1200 s; a clock split at 900 s (a zone 45 minutes off the UTC hours, such as +05:45) leaves
+  // segments of 900 s and 2700 s, which need 1 and 3 sub-steps: 4 in all. Rounding to the
+  // nearest gave 1 and 2, the second 1350 s long.
+  Footprint fp{10000.0, 10000.0, 90.0};
+  EngineOptions opt;
+  opt.reading = MetReading::instantaneous;
+  opt.fixed_substeps_per_hour = 3;
+  BoxEngine engine(fp, {{0.0, 0.0, 0.0}}, 1, opt);
+  Forcing F = constant_forcing(1, MetReading::instantaneous, 400.0, 2.0, 0.0, 0.0, 0.0, {100.0});
+  F.clock_split_s = 900;
+  BoxState s = engine.make_state(400.0);
+  HourResult r = engine.make_result();
+  engine.step_hour(s, F, 0, r);
+  CHECK(r.substeps == 4);
+  // Without a split the count is exactly the one asked for; a half-hour split divides evenly.
+  F.clock_split_s = 0;
+  engine.step_hour(s, F, 0, r);
+  CHECK(r.substeps == 3);
+  F.clock_split_s = 1800;
+  engine.step_hour(s, F, 0, r);
+  CHECK(r.substeps == 4);
+}

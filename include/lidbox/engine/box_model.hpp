@@ -161,7 +161,7 @@ struct HourResult {
   double wind_u_mean_m_s = 0.0;
   double wind_v_mean_m_s = 0.0;
   double flushing_rate_mean_per_s = 0.0;
-  double ventilation_mean_m2_s = 0.0;  // hour mean of u H
+  double ventilation_mean_m2_s = 0.0;  // hour mean of u H of the met as given (before floors)
   bool calm_floor = false;
   bool lid_floor = false;
   int substeps = 0;
