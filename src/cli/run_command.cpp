@@ -42,10 +42,6 @@ void add_run_command(CLI::App& app, int& exit_code) {
   run->callback([opt, &exit_code] {
     const CaseSpec c = load_case(opt->case_file);
     const MetSeries met = read_case_met(c);
-    // Before the run: a scheme whose field the met lacks is refused without running.
-    const DiagnosticsSetup diag =
-        load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
-    const DiagnosticsResult days = diagnose_met(met, c.met.reading, c.met.hour_label, c.zone, diag);
     Progress progress;
     const RunResult r =
         run_case(c, met, [&progress](double f, const char* stage) { progress.update(f, stage); });
@@ -53,6 +49,9 @@ void add_run_command(CLI::App& app, int& exit_code) {
     std::optional<UtcSeconds> issue;
     if (!opt->issue_time.empty()) issue = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
     const auto standards = run_standards(c, r, issue);
+    const DiagnosticsSetup diag =
+        load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
+    const DiagnosticsResult days = diagnose_met(met, c.met.reading, c.met.hour_label, c.zone, diag);
     auto files = render_run_outputs(c, met, r, standards ? &*standards : nullptr);
     append_diagnostics_outputs(files, diag, days);
     if (opt->netcdf || c.netcdf_output) {

@@ -567,7 +567,7 @@ void read_output(const TomlTable& top, CaseSpec& c) {
 CaseSpec parse_case(const std::string& text, const std::string& file, const std::string& base_dir) {
   const TomlDocument doc(text, file);
   const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
-                            "pollutants", "sectors", "standards", "diagnostics", "grid", "output"});
+                            "pollutants", "sectors", "standards", "diagnostics", "output"});
   CaseSpec c;
   c.file = file;
   read_top_level(top, c);
@@ -577,7 +577,7 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   read_pollutants(top, c);  // after [model]: initial values depend on the spin-up
   read_sectors(top, c);     // after [airshed] and the pollutants: area fluxes and emission keys
   read_standards(top, base_dir, c);
-  read_diagnostics(top, base_dir, c);  // [grid] belongs to the grid room (grid_case.hpp)
+  read_diagnostics(top, base_dir, c);
   read_output(top, c);
   return c;
 }

@@ -9,7 +9,6 @@
 
 #include "lidbox/base/error.hpp"
 #include "lidbox/diagnostics/daily_diagnostics.hpp"
-#include "lidbox/engine/case_file.hpp"
 
 using namespace lidbox;
 
@@ -234,13 +233,6 @@ TEST_CASE("every shipped scheme loads and names its fields") {
     CHECK(s.path == "lidbox data: stagnation/" + id + ".toml");
   }
   CHECK(shipped_stagnation_schemes().size() == 6);
-}
-
-TEST_CASE(
-    "the case file's diagnostics fields are the scheme fields beyond mixing height and wind") {
-  std::vector<std::string> names(diagnostic_field_names().begin() + 2,
-                                 diagnostic_field_names().end());
-  CHECK(names == diagnostics_extra_fields());
 }
 
 TEST_CASE("a misspelt scheme field is reported with the closest name") {
