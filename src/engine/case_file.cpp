@@ -377,6 +377,31 @@ void read_met(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
   c.engine.reading = c.met.reading;
 }
 
+// Which air the residual layer holds, and the rise and fall that make a new mixing cycle.
+void read_residual_top_rule(const TomlTable& r, CaseSpec& c) {
+  const std::string rule = r.optional_string("residual_top").value_or("most_recent_cycle");
+  if (rule == "most_recent_cycle") {
+    c.engine.residual_top = ResidualTop::most_recent_cycle;
+  } else if (rule == "highest_since_emptied") {
+    c.engine.residual_top = ResidualTop::highest_since_emptied;
+  } else {
+    throw InputError(r.where("residual_top"), "\"" + rule + "\"",
+                     "\"most_recent_cycle\" or \"highest_since_emptied\"");
+  }
+  const auto threshold = r.optional_quantity("residual_cycle_threshold", "m", "length");
+  if (!threshold) return;
+  if (!(*threshold > 0.0)) {
+    throw InputError(r.where("residual_cycle_threshold"), "a threshold <= 0 m",
+                     "a positive height (a lid that wiggles by less starts no new cycle)");
+  }
+  if (c.engine.residual_top != ResidualTop::most_recent_cycle) {
+    throw InputError(r.where("residual_cycle_threshold"),
+                     "a cycle threshold with residual_top = \"highest_since_emptied\"",
+                     "it only with residual_top = \"most_recent_cycle\"");
+  }
+  c.engine.cycle_threshold_m = *threshold;
+}
+
 // The residual layer's top at the start; whether it is at or above the first lid is checked
 // against the met by run_case.
 void read_initial_residual_top(const TomlTable& r, CaseSpec& c) {
@@ -400,10 +425,12 @@ void read_model(const TomlTable& top, CaseSpec& c) {
   const auto r = top.optional_table(
       "model", {"residual_layer", "residual_wind_factor", "min_wind_speed", "min_mixing_height",
                 "spin_up", "spin_up_tolerance", "spin_up_max_days", "max_lambda_dt",
-                "max_relative_lid_change", "max_substeps_per_hour", "initial_residual_top"});
+                "max_relative_lid_change", "max_substeps_per_hour", "initial_residual_top",
+                "residual_top", "residual_cycle_threshold"});
   if (!r) return;
   c.engine.residual_layer = r->optional_bool("residual_layer").value_or(true);
   c.engine.residual_wind_factor = r->optional_number("residual_wind_factor").value_or(0.0);
+  read_residual_top_rule(*r, c);
   if (c.engine.residual_wind_factor < 0.0) {
     throw InputError(r->where("residual_wind_factor"), "a negative factor", "a factor >= 0");
   }

@@ -266,7 +266,7 @@ void set_initial_state(const CaseSpec& c, const MetSeries& met, const Forcing& F
                            format_number(state.mixing_height_m) + " m (" + met.source + line + ")",
                        "a residual-layer top at or above the first lid");
     }
-    state.residual_top_m = top;
+    state.set_residual_top(top);
   }
   for (std::size_t p = 0; p < F.n_pollutants; ++p) {
     const PollutantSpec& ps = c.pollutants[p];
@@ -304,7 +304,7 @@ void record_hour(std::size_t i, const BoxEngine& engine, const BoxState& state, 
   for (std::size_t p = 0; p < R.n_pollutants; ++p) {
     const std::size_t k = R.at(i, p);
     R.end_mixed_g_m3[k] = state.c_total(p);
-    R.end_residual_g_m3[k] = state.residual_top_m > state.mixing_height_m ? state.cr_total(p) : 0.0;
+    R.end_residual_g_m3[k] = state.residual_mean_total(p);
     R.budget[k] = hr.budget[p];
     R.mixed_mass_g_m2[k] = engine.mixed_mass(state, p);
     R.residual_mass_g_m2[k] = engine.residual_mass(state, p);
