@@ -204,6 +204,8 @@ CfTable budget_cf_table(const CaseSpec& c, const RunResult& r) {
        "carried into the residual layer"},
       {"residual_advected_out", &BudgetTerms::residual_advected_out,
        "carried out of the residual layer"},
+      {"vented_aloft", &BudgetTerms::vented_aloft,
+       "older residual air vented to the free troposphere when a new mixing cycle begins"},
   };
   const std::size_t n = r.hours.size();
   for (std::size_t p = 0; p < r.n_pollutants; ++p) {
