@@ -120,7 +120,16 @@ void run(const EvaluateArgs& a) {
   const BelowDetection below = parse_below_detection(a.below, "--below-detection");
   // Read every monitor before the run, so that a bad file is refused at once.
   std::vector<Observations> observations;
-  for (const auto& f : a.monitors) observations.push_back(read_observations_csv(f));
+  for (std::size_t k = 0; k < a.monitors.size(); ++k) {
+    for (std::size_t j = 0; j < k; ++j) {
+      if (std::filesystem::path(a.monitors[j]).lexically_normal() ==
+          std::filesystem::path(a.monitors[k]).lexically_normal()) {
+        throw InputError(a.monitors[k], "given twice",
+                         "each monitor file once (its hours would count twice)");
+      }
+    }
+    observations.push_back(read_observations_csv(a.monitors[k]));
+  }
   const std::vector<RuleSet> rules = rules_for(c, a);
   const MetSeries met = read_case_met(c);
   Progress progress;
@@ -136,6 +145,12 @@ void run(const EvaluateArgs& a) {
   for (const auto& obs : observations) {
     for (auto& m : pair_monitor(c, r, obs, a.pollutant, below, &in.skipped))
       in.monitors.push_back(std::move(m));
+  }
+  // Labels name monitors in tables and charts: two files with one stem keep their paths.
+  for (auto& m : in.monitors) {
+    for (const auto& other : in.monitors) {
+      if (other.label == m.label && other.monitor != m.monitor) m.label = m.monitor;
+    }
   }
   for (const auto& m : in.monitors) in.modelled.push_back(model_total(c, r, m.case_index));
   in.before = evaluate_run(c, r, in.monitors, rules);
