@@ -7,6 +7,7 @@
 #include <sstream>
 
 #include "lidbox/analysis/calibrated_case.hpp"
+#include "lidbox/analysis/ensemble_verification.hpp"
 #include "lidbox/analysis/model_evaluation.hpp"
 #include "lidbox/analysis/sector_fit.hpp"
 #include "lidbox/base/atomic_file.hpp"
@@ -154,6 +155,14 @@ void run(const EvaluateArgs& a) {
   }
   for (const auto& m : in.monitors) in.modelled.push_back(model_total(c, r, m.case_index));
   in.before = evaluate_run(c, r, in.monitors, rules);
+  if (c.ensemble) {
+    // The members' daily probabilities per rule against the monitors' own day calls.
+    const EnsembleOutcome ens =
+        forecast_ensemble(c, met, rules, [&progress](double f) { progress.update(f, "ensemble"); });
+    progress.finish();
+    in.ensemble_members = ens.members.size();
+    in.ensemble = verify_ensemble(in.before, ens.rules, a.seed);
+  }
 
   const std::string dir = a.output_dir.empty()
                               ? (std::filesystem::path("outputs") / (c.name + "-evaluate")).string()
