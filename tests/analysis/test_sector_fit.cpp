@@ -132,7 +132,7 @@ TEST_CASE("monitors made from the model with known scales and no noise are fitte
 }
 
 TEST_CASE(
-    "with noise the fit recovers the scales within two standard errors, Gaussian and bootstrap") {
+    "with noise the fit recovers the scales within three standard errors, Gaussian and bootstrap") {
   const unsigned seed = 4242;
   std::printf("seed %u\n", seed);
   const CaseSpec c = parse_case(kCase, "fit.toml", ".");
