@@ -4,12 +4,15 @@
 #include <iostream>
 #include <memory>
 
+#include "lidbox/analysis/run_standards.hpp"
 #include "lidbox/base/atomic_file.hpp"
+#include "lidbox/diagnostics/daily_diagnostics.hpp"
 #include "lidbox/engine/case_file.hpp"
 #include "lidbox/engine/run.hpp"
-#include "lidbox/report/run_report.hpp"
+#include "lidbox/report/diagnostics_report.hpp"
 #include "lidbox/report/run_netcdf.hpp"
-#include "lidbox/analysis/run_standards.hpp"
+#include "lidbox/report/run_report.hpp"
+#include "lidbox/report/ensemble_report.hpp"
 #include "progress.hpp"
 
 namespace lidbox::cli {
@@ -22,6 +25,13 @@ struct RunOptions {
   bool quiet = false;
   bool netcdf = false;
 };
+// Adds a section at the end of one of the rendered files (the summary).
+void append_section(std::vector<OutputFile>& files, const std::string& name,
+                    const std::string& text) {
+  for (auto& f : files) {
+    if (f.name == name) f.content += text;
+  }
+}
 }  // namespace
 
 void add_run_command(CLI::App& app, int& exit_code) {
@@ -47,11 +57,23 @@ void add_run_command(CLI::App& app, int& exit_code) {
     std::optional<UtcSeconds> issue;
     if (!opt->issue_time.empty()) issue = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
     const auto standards = run_standards(c, r, issue);
+    const DiagnosticsSetup diag =
+        load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
+    const DiagnosticsResult days = diagnose_met(met, c.met.reading, c.met.hour_label, c.zone, diag);
     auto files = render_run_outputs(c, met, r, standards ? &*standards : nullptr);
+    append_diagnostics_outputs(files, diag, days);
     if (opt->netcdf || c.netcdf_output) {
       for (auto& f : render_run_netcdf_outputs(c, r, standards ? &*standards : nullptr)) {
         files.push_back(std::move(f));
       }
+    }
+    if (c.ensemble) {
+      const auto ens = forecast_ensemble(
+          c, met, standards ? standards->options.rule_sets : std::vector<RuleSet>{},
+          [&progress](double f) { progress.update(f, "ensemble"); });
+      progress.finish();
+      append_section(files, "summary.txt", render_ensemble_summary(c, ens));
+      for (auto& f : render_ensemble_outputs(c, ens)) files.push_back(std::move(f));
     }
     const std::string dir = opt->output_dir.empty() ? c.output_directory : opt->output_dir;
     const auto written = write_output_files(dir, files);
