@@ -199,19 +199,28 @@ void read_background(const TomlTable& r, PollutantSpec& p) {
   }
 }
 
-void read_initial_values(const TomlTable& r, PollutantSpec& p, SpinUp spin_up) {
+void read_initial_values(const TomlTable& r, PollutantSpec& p, const CaseSpec& c) {
   for (const char* key : {"initial", "initial_residual"}) {
     if (!r.has(key)) continue;
-    if (spin_up != SpinUp::none) {
+    if (c.spin_up != SpinUp::none) {
       throw InputError(r.where(key), "an initial value with spin_up = \"repeat_first_day\"",
                        "spin_up = \"none\" in [model] to start from given values");
     }
     const double v = *concentration_g_m3(r, key, p);
     (std::string(key) == "initial" ? p.initial_g_m3 : p.initial_residual_g_m3) = v;
   }
+  // Without a top the residual layer starts with no depth and its start value would weigh
+  // nothing: refuse rather than ignore it.
+  if (p.initial_residual_g_m3.value_or(0.0) > 0.0 && !c.initial_residual_top_m) {
+    throw InputError(r.where("initial_residual"),
+                     "an initial residual-layer concentration without a residual-layer top",
+                     "initial_residual_top = \"800 m\" (say) in [model], the top of the "
+                     "residual layer at the start, at or above the first hour's lid");
+  }
 }
 
-PollutantSpec read_pollutant(const TomlTable& pollutants, const std::string& name, SpinUp spin_up) {
+PollutantSpec read_pollutant(const TomlTable& pollutants, const std::string& name,
+                             const CaseSpec& c) {
   const TomlTable r = *pollutants.optional_table(
       name, {"unit", "molar_mass", "reference_conditions", "lifetime", "loss_rate",
              "residual_lifetime", "residual_loss_rate", "deposition_velocity", "background",
@@ -240,7 +249,7 @@ PollutantSpec read_pollutant(const TomlTable& pollutants, const std::string& nam
       r, "free_troposphere", p,
       "the concentration above the residual layer, such as free_troposphere = \"0.08 " +
           p.unit.text + "\"");
-  read_initial_values(r, p, spin_up);
+  read_initial_values(r, p, c);
   return p;
 }
 
@@ -368,14 +377,60 @@ void read_met(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
   c.engine.reading = c.met.reading;
 }
 
+// Which air the residual layer holds, and the rise and fall that make a new mixing cycle.
+void read_residual_top_rule(const TomlTable& r, CaseSpec& c) {
+  const std::string rule = r.optional_string("residual_top").value_or("most_recent_cycle");
+  if (rule == "most_recent_cycle") {
+    c.engine.residual_top = ResidualTop::most_recent_cycle;
+  } else if (rule == "highest_since_emptied") {
+    c.engine.residual_top = ResidualTop::highest_since_emptied;
+  } else {
+    throw InputError(r.where("residual_top"), "\"" + rule + "\"",
+                     "\"most_recent_cycle\" or \"highest_since_emptied\"");
+  }
+  const auto threshold = r.optional_quantity("residual_cycle_threshold", "m", "length");
+  if (!threshold) return;
+  if (!(*threshold > 0.0)) {
+    throw InputError(r.where("residual_cycle_threshold"), "a threshold <= 0 m",
+                     "a positive height (a lid that wiggles by less starts no new cycle)");
+  }
+  if (c.engine.residual_top != ResidualTop::most_recent_cycle) {
+    throw InputError(r.where("residual_cycle_threshold"),
+                     "a cycle threshold with residual_top = \"highest_since_emptied\"",
+                     "it only with residual_top = \"most_recent_cycle\"");
+  }
+  c.engine.cycle_threshold_m = *threshold;
+}
+
+// The residual layer's top at the start; whether it is at or above the first lid is checked
+// against the met by run_case.
+void read_initial_residual_top(const TomlTable& r, CaseSpec& c) {
+  const std::string key = "initial_residual_top";
+  const auto top = r.optional_quantity(key, "m", "length");
+  if (!top) return;
+  if (c.spin_up != SpinUp::none) {
+    throw InputError(r.where(key), "a residual-layer top with spin_up = \"repeat_first_day\"",
+                     "spin_up = \"none\" to start from given values");
+  }
+  if (!c.engine.residual_layer) {
+    throw InputError(r.where(key), "a residual-layer top with residual_layer = false",
+                     "residual_layer = true, or no initial_residual_top");
+  }
+  if (!(*top > 0.0)) throw InputError(r.where(key), "a top <= 0 m", "a positive height");
+  c.initial_residual_top_m = *top;
+  c.initial_residual_top_where = r.where(key);
+}
+
 void read_model(const TomlTable& top, CaseSpec& c) {
   const auto r = top.optional_table(
       "model", {"residual_layer", "residual_wind_factor", "min_wind_speed", "min_mixing_height",
                 "spin_up", "spin_up_tolerance", "spin_up_max_days", "max_lambda_dt",
-                "max_relative_lid_change", "max_substeps_per_hour"});
+                "max_relative_lid_change", "max_substeps_per_hour", "initial_residual_top",
+                "residual_top", "residual_cycle_threshold"});
   if (!r) return;
   c.engine.residual_layer = r->optional_bool("residual_layer").value_or(true);
   c.engine.residual_wind_factor = r->optional_number("residual_wind_factor").value_or(0.0);
+  read_residual_top_rule(*r, c);
   if (c.engine.residual_wind_factor < 0.0) {
     throw InputError(r->where("residual_wind_factor"), "a negative factor", "a factor >= 0");
   }
@@ -408,6 +463,7 @@ void read_model(const TomlTable& top, CaseSpec& c) {
   if (!(c.engine.max_lambda_dt > 0.0) || !(c.engine.max_relative_lid_change > 0.0)) {
     throw InputError(r->where_table(), "a sub-step control <= 0", "positive sub-step controls");
   }
+  read_initial_residual_top(*r, c);
 }
 
 void read_pollutants(const TomlTable& top, CaseSpec& c) {
@@ -415,8 +471,7 @@ void read_pollutants(const TomlTable& top, CaseSpec& c) {
   const auto names = pollutants ? pollutants->table_names_in_order() : std::vector<std::string>{};
   if (names.empty())
     top.throw_missing("pollutants", "at least one pollutant, e.g. [pollutants.CO]");
-  for (const auto& name : names)
-    c.pollutants.push_back(read_pollutant(*pollutants, name, c.spin_up));
+  for (const auto& name : names) c.pollutants.push_back(read_pollutant(*pollutants, name, c));
 }
 
 EmissionSector read_sector(const TomlTable& sectors, const std::string& name, const CaseSpec& c) {

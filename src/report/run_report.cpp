@@ -65,10 +65,12 @@ std::string render_budget_csv(const CaseSpec& c, const RunResult& r) {
   const bool rl = c.engine.residual_layer;
   const double A = c.footprint.area_m2();
   std::ostringstream o;
-  o << "period_start_utc,pollutant,emitted [g/h],advected_in [g/h],advected_out [g/h],reacted [g/h],"
+  o << "period_start_utc,pollutant,emitted [g/h],advected_in [g/h],advected_out [g/h],reacted "
+       "[g/h],"
        "deposited [g/h],entrained_from_residual [g/h],entrained_from_free_troposphere [g/h],"
        "detrained [g/h],residual_reacted [g/h],residual_advected_in [g/h],"
-       "residual_advected_out [g/h],mixed_layer_mass [g],residual_layer_mass [g],"
+       "residual_advected_out [g/h],vented_aloft [g/h],mixed_layer_mass [g],residual_layer_mass "
+       "[g],"
        "cumulative_closure [g]\n";
   for (std::size_t i = 0; i < r.hours.size(); ++i) {
     for (std::size_t p = 0; p < r.n_pollutants; ++p) {
@@ -77,8 +79,7 @@ std::string render_budget_csv(const CaseSpec& c, const RunResult& r) {
       for (double v : {b.emitted, b.advected_in, b.advected_out, b.reacted, b.deposited,
                        b.entrained_from_residual, b.entrained_from_free_troposphere, b.detrained,
                        b.residual_reacted, b.residual_advected_in, b.residual_advected_out,
-                       r.mixed_mass(i, p),
-                       r.residual_mass(i, p)}) {
+                       b.vented_aloft, r.mixed_mass(i, p), r.residual_mass(i, p)}) {
         o << ',' << format_number(v * A, 10);
       }
       char buf[32];

@@ -49,7 +49,7 @@ struct PollutantSpec {
   BackgroundSpec background;
   double free_troposphere_g_m3 = 0.0;
   std::optional<double> initial_g_m3;           // only without spin-up
-  std::optional<double> initial_residual_g_m3;  // only without spin-up
+  std::optional<double> initial_residual_g_m3;  // only without spin-up; > 0 needs a top
 };
 
 enum class SpinUp { none, repeat_first_day };
@@ -89,6 +89,11 @@ struct CaseSpec {
   SpinUp spin_up = SpinUp::repeat_first_day;
   double spin_up_tolerance = 1e-3;  // relative change of the day's hour means
   int spin_up_max_days = 60;
+  // Top of the residual layer at the start [m] (only without spin-up); it must be at or above
+  // the initial lid, which run_case checks against the met. Absent: no residual layer at the
+  // start. `initial_residual_top_where` places the key for that message.
+  std::optional<double> initial_residual_top_m;
+  std::string initial_residual_top_where;
   std::vector<PollutantSpec> pollutants;
   std::vector<EmissionSector> sectors;  // rates per pollutant in the order of `pollutants`
   std::optional<StandardsSpec> standards;  // absent: no standards tables

@@ -29,8 +29,8 @@
 
 #include "lidbox/base/atomic_file.hpp"
 #include "lidbox/engine/case_file.hpp"
-#include "lidbox/report/netcdf_writer.hpp"
 #include "lidbox/engine/run.hpp"
+#include "lidbox/report/netcdf_writer.hpp"
 #include "lidbox/standards/standards_report.hpp"
 
 namespace lidbox {
@@ -41,9 +41,10 @@ CfTable budget_cf_table(const CaseSpec& c, const RunResult& r);
 // InternalError when the report has no daily rows.
 CfTable daily_statistics_cf_table(const CaseSpec& c, const StandardsReport& report);
 
-// The running means the case asked for ([standards] rolling), one table per window length k:
-// rows are the windows (time = window start, time_bnds = the window), per pollutant P
-// P_mean_<k>h and P_valid_hours_<k>h.
+// The running means the case asked for ([standards] rolling), one table per request (window
+// length k, at least m hours present), in the order of report.options.rolling: rows are the
+// windows (time = window start, time_bnds = the window), per pollutant P P_mean_<k>h_min<m>
+// and P_valid_hours_<k>h. Written as rolling_<k>h_min<m>.nc.
 std::vector<CfTable> running_means_cf_tables(const CaseSpec& c, const StandardsReport& report);
 
 // {"hourly.nc", "budget.nc"}, with a report that has daily rows "daily.nc", and one
