@@ -7,6 +7,7 @@
 #include "lidbox/base/error.hpp"
 #include "metdump_command.hpp"
 #include "observe_command.hpp"
+#include "outlook_command.hpp"
 #include "run_command.hpp"
 
 int main(int argc, char** argv) {
@@ -20,6 +21,7 @@ int main(int argc, char** argv) {
   lidbox::cli::add_run_command(app, exit_code);
   lidbox::cli::add_observe_command(app, exit_code);
   lidbox::cli::add_met_dump_command(app, exit_code);
+  lidbox::cli::add_outlook_command(app, exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

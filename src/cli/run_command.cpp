@@ -4,12 +4,14 @@
 #include <iostream>
 #include <memory>
 
+#include "lidbox/analysis/run_standards.hpp"
 #include "lidbox/base/atomic_file.hpp"
+#include "lidbox/diagnostics/daily_diagnostics.hpp"
 #include "lidbox/engine/case_file.hpp"
 #include "lidbox/engine/run.hpp"
-#include "lidbox/report/run_report.hpp"
+#include "lidbox/report/diagnostics_report.hpp"
 #include "lidbox/report/run_netcdf.hpp"
-#include "lidbox/analysis/run_standards.hpp"
+#include "lidbox/report/run_report.hpp"
 #include "progress.hpp"
 
 namespace lidbox::cli {
@@ -47,7 +49,11 @@ void add_run_command(CLI::App& app, int& exit_code) {
     std::optional<UtcSeconds> issue;
     if (!opt->issue_time.empty()) issue = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
     const auto standards = run_standards(c, r, issue);
+    const DiagnosticsSetup diag =
+        load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
+    const DiagnosticsResult days = diagnose_met(met, c.met.reading, c.met.hour_label, c.zone, diag);
     auto files = render_run_outputs(c, met, r, standards ? &*standards : nullptr);
+    append_diagnostics_outputs(files, diag, days);
     if (opt->netcdf || c.netcdf_output) {
       for (auto& f : render_run_netcdf_outputs(c, r, standards ? &*standards : nullptr)) {
         files.push_back(std::move(f));

@@ -550,6 +550,37 @@ void read_standards(const TomlTable& top, const std::string& base_dir, CaseSpec&
   c.standards = s;
 }
 
+}  // namespace
+
+const std::vector<std::string>& diagnostics_extra_fields() {
+  static const std::vector<std::string> names = {"wind_500hPa", "precipitation", "geostrophic_wind",
+                                                 "mixed_layer_wind", "transport_wind"};
+  return names;
+}
+
+namespace {
+
+void read_diagnostics(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
+  const auto r = top.optional_table("diagnostics", {"ventilation_table", "schemes", "fields"});
+  if (!r) return;
+  auto resolve = [&base_dir](std::string v) {
+    const std::filesystem::path p(v);
+    if (p.extension() == ".toml" && p.is_relative()) v = (std::filesystem::path(base_dir) / p).string();
+    return v;
+  };
+  if (auto t = r->optional_string("ventilation_table")) c.diagnostics.ventilation_table = t->empty() ? "" : resolve(*t);
+  for (const auto& s : r->string_array("schemes")) c.diagnostics.schemes.push_back(resolve(s));
+  if (const auto f = r->optional_table("fields", diagnostics_extra_fields())) {
+    if (c.met.format != MetFormat::netcdf) {
+      throw InputError(r->where("fields"), "fields for a CSV met file",
+                       "fields only with NetCDF met; a CSV file names its columns after the fields");
+    }
+    for (const auto& field : diagnostics_extra_fields()) {
+      if (auto v = f->optional_string(field)) c.diagnostics.fields[field] = *v;
+    }
+  }
+}
+
 void read_output(const TomlTable& top, CaseSpec& c) {
   c.output_directory = (std::filesystem::path("outputs") / c.name).string();
   const auto r = top.optional_table("output", {"directory", "netcdf"});
@@ -563,7 +594,7 @@ void read_output(const TomlTable& top, CaseSpec& c) {
 CaseSpec parse_case(const std::string& text, const std::string& file, const std::string& base_dir) {
   const TomlDocument doc(text, file);
   const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
-                            "pollutants", "sectors", "standards", "output"});
+                            "pollutants", "sectors", "standards", "diagnostics", "output"});
   CaseSpec c;
   c.file = file;
   read_top_level(top, c);
@@ -573,6 +604,7 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   read_pollutants(top, c);  // after [model]: initial values depend on the spin-up
   read_sectors(top, c);     // after [airshed] and the pollutants: area fluxes and emission keys
   read_standards(top, base_dir, c);
+  read_diagnostics(top, base_dir, c);
   read_output(top, c);
   return c;
 }

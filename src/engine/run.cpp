@@ -45,6 +45,7 @@ MetSeries read_case_met(const CaseSpec& c) {
     for (const auto& p : c.pollutants) {
       if (p.background.kind == BackgroundSpec::Kind::column) o.extra[p.background.column] = p.background.column;
     }
+    for (const auto& [field, variable] : c.diagnostics.fields) o.extra[field] = variable;
     MetSeries met = read_met_netcdf(c.met.path, o);
     fill_gaps(met, c.met.max_gap_hours);
     validate_met(met);

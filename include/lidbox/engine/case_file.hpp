@@ -8,6 +8,7 @@
 // README.md documents each key.
 #pragma once
 
+#include <map>
 #include <optional>
 #include <string>
 #include <vector>
@@ -78,6 +79,17 @@ struct StandardsSpec {
                                                // 0 = the standards' 75 % default)
 };
 
+// What [diagnostics] names; the diagnostics room loads and applies it (daily_diagnostics.hpp).
+struct DiagnosticsSpec {
+  std::string ventilation_table = "usfs-vcis";  // id or path; "" for none
+  std::vector<std::string> schemes;              // ids or paths (resolved against the case)
+  std::map<std::string, std::string> fields;     // field -> NetCDF variable (NetCDF met only)
+};
+
+// The diagnostics fields a met file may carry beside the mixing height and wind (the names of
+// stagnation_scheme.hpp's DiagnosticField; a test checks that the two lists agree).
+const std::vector<std::string>& diagnostics_extra_fields();
+
 struct CaseSpec {
   std::string file;  // the case file as named by the user
   std::string name;
@@ -97,6 +109,7 @@ struct CaseSpec {
   std::vector<PollutantSpec> pollutants;
   std::vector<EmissionSector> sectors;  // rates per pollutant in the order of `pollutants`
   std::optional<StandardsSpec> standards;  // absent: no standards tables
+  DiagnosticsSpec diagnostics;
   std::string output_directory;         // default outputs/<name>
   bool netcdf_output = false;           // also write hourly.nc, budget.nc, daily.nc
   bool invented = false;                // the case says its scenario is invented
