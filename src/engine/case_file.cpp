@@ -589,12 +589,21 @@ void read_output(const TomlTable& top, CaseSpec& c) {
   c.netcdf_output = r->optional_bool("netcdf").value_or(false);
 }
 
+// [scenario] and [ensemble]: their readers live with their concepts.
+void read_forecast_tables(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
+  std::vector<std::string> sectors;
+  for (const auto& s : c.sectors) sectors.push_back(s.name);
+  c.scenario = read_emission_scenario(top, sectors, c.zone);
+  c.ensemble = read_ensemble_spec(top, base_dir);
+}
+
 }  // namespace
 
 CaseSpec parse_case(const std::string& text, const std::string& file, const std::string& base_dir) {
   const TomlDocument doc(text, file);
   const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
-                            "pollutants", "sectors", "standards", "diagnostics", "output"});
+                            "pollutants", "sectors", "standards", "diagnostics", "output",
+                            "scenario", "ensemble"});
   CaseSpec c;
   c.file = file;
   read_top_level(top, c);
@@ -606,6 +615,7 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   read_standards(top, base_dir, c);
   read_diagnostics(top, base_dir, c);
   read_output(top, c);
+  read_forecast_tables(top, base_dir, c);
   return c;
 }
 

@@ -433,13 +433,27 @@ std::string summary_text(const EvaluationReportInput& in) {
 
 // ---- charts ----------------------------------------------------------------------------------
 
-double nice_max(double v) {
-  if (!(v > 0.0)) return 1.0;
-  const double e = std::pow(10.0, std::floor(std::log10(v)));
-  for (double m : {1.0, 2.0, 2.5, 5.0, 10.0}) {
-    if (v <= m * e) return m * e;
+// An axis from lo to hi in about 5 steps of 1, 2, 2.5 or 5 times a power of ten.
+struct Axis {
+  double lo = 0.0, hi = 1.0, step = 0.25;
+};
+
+Axis nice_axis(double lo, double hi) {
+  if (!(hi > lo)) hi = lo + 1.0;
+  const double raw = (hi - lo) / 5.0;
+  const double e = std::pow(10.0, std::floor(std::log10(raw)));
+  double step = 10.0 * e;
+  for (double m : {1.0, 2.0, 2.5, 5.0}) {
+    if (raw <= m * e) {
+      step = m * e;
+      break;
+    }
   }
-  return 10.0 * e;
+  Axis a;
+  a.step = step;
+  a.lo = std::floor(lo / step) * step;
+  a.hi = std::ceil(hi / step) * step;
+  return a;
 }
 
 void caution_lines(std::ostringstream& o, int x, double y, std::size_t chars = 140) {
@@ -489,13 +503,13 @@ std::string render_evaluation_timeseries_svg(const EvaluationReportInput& in) {
       }
       if (in.after) vmax = std::max(vmax, in.fitted[static_cast<std::size_t>(k)][i]);
     }
-    vmax = nice_max(vmax);
-    vmin = vmin < 0.0 ? -nice_max(-vmin) : 0.0;
+    const Axis ax = nice_axis(vmin, vmax);
+    vmin = ax.lo;
+    vmax = ax.hi;
     auto y_of = [&](double v) { return y0 + panel_h - panel_h * (v - vmin) / (vmax - vmin); };
     o << "<rect x=\"" << left << "\" y=\"" << y0 << "\" width=\"" << plot_w << "\" height=\""
       << panel_h << "\" fill=\"none\" stroke=\"#333\"/>\n";
-    for (int t = 0; t <= 4; ++t) {
-      const double v = vmin + (vmax - vmin) * t / 4.0;
+    for (double v = vmin; v <= vmax + 0.5 * ax.step; v += ax.step) {
       o << "<line x1=\"" << left - 4 << "\" x2=\"" << left + plot_w << "\" y1=\"" << y_of(v)
         << "\" y2=\"" << y_of(v) << "\" stroke=\"#ddd\"/><text x=\"" << left - 6 << "\" y=\""
         << y_of(v) + 4 << "\" text-anchor=\"end\">" << format_number(v, 4) << "</text>\n";
@@ -556,7 +570,7 @@ std::string render_evaluation_timeseries_svg(const EvaluationReportInput& in) {
 }
 
 std::string render_evaluation_scatter_svg(const EvaluationReportInput& in) {
-  const int side = 380, pad = 70, gap = 40, top = 80;
+  const int side = 380, pad = 70, gap = 40, top = 90;
   const int panels = static_cast<int>(in.monitors.size());
   const int cols = std::min(panels, 2);
   const int rows = (panels + cols - 1) / cols;
@@ -567,7 +581,8 @@ std::string render_evaluation_scatter_svg(const EvaluationReportInput& in) {
     << "\" font-family=\"sans-serif\" font-size=\"12\">\n<rect width=\"100%\" height=\"100%\" "
        "fill=\"white\"/>\n"
     << "<text x=\"" << pad << "\" y=\"22\" font-size=\"15\" font-weight=\"bold\">" << in.c->name
-    << ": modelled against observed hour means</text>\n";
+    << ": modelled against observed hour means; model (blue)"
+    << (in.after ? ", after the fit (orange)" : "") << "; lines 1:1, 2:1 and 1:2</text>\n";
   caution_lines(o, pad, 40.0, static_cast<std::size_t>((W - pad) / 6.6));
   for (int k = 0; k < panels; ++k) {
     const auto& m = in.monitors[static_cast<std::size_t>(k)];
@@ -581,14 +596,14 @@ std::string render_evaluation_scatter_svg(const EvaluationReportInput& in) {
       vmin = std::min(vmin, m.observed[i]);
       if (in.after) vmax = std::max(vmax, in.fitted[static_cast<std::size_t>(k)][i]);
     }
-    vmax = nice_max(vmax);
-    vmin = vmin < 0.0 ? -nice_max(-vmin) : 0.0;
+    const Axis ax = nice_axis(vmin, vmax);
+    vmin = ax.lo;
+    vmax = ax.hi;
     auto X = [&](double v) { return x0 + side * (v - vmin) / (vmax - vmin); };
     auto Y = [&](double v) { return y0 + side - side * (v - vmin) / (vmax - vmin); };
     o << "<rect x=\"" << x0 << "\" y=\"" << y0 << "\" width=\"" << side << "\" height=\"" << side
       << "\" fill=\"none\" stroke=\"#333\"/>\n";
-    for (int t = 0; t <= 4; ++t) {
-      const double v = vmin + (vmax - vmin) * t / 4.0;
+    for (double v = vmin; v <= vmax + 0.5 * ax.step; v += ax.step) {
       o << "<text x=\"" << x0 - 6 << "\" y=\"" << Y(v) + 4 << "\" text-anchor=\"end\">"
         << format_number(v, 4) << "</text><text x=\"" << X(v) << "\" y=\"" << y0 + side + 16
         << "\" text-anchor=\"middle\">" << format_number(v, 4) << "</text>\n";
@@ -618,8 +633,7 @@ std::string render_evaluation_scatter_svg(const EvaluationReportInput& in) {
       }
     }
     o << "<text x=\"" << x0 << "\" y=\"" << y0 - 8 << "\"><tspan font-weight=\"bold\">" << m.label
-      << "</tspan> " << m.pollutant << ": model (blue)"
-      << (in.after ? ", after the fit (orange)" : "") << "; lines 1:1, 2:1, 1:2</text>\n"
+      << "</tspan> " << m.pollutant << "</text>\n"
       << "<text x=\"" << x0 + side / 2 << "\" y=\"" << y0 + side + 34
       << "\" text-anchor=\"middle\">observed [" << m.unit << "]</text><text x=\"" << x0 - 48
       << "\" y=\"" << y0 + side / 2 << "\" transform=\"rotate(-90 " << x0 - 48 << " "

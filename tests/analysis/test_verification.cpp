@@ -2,7 +2,10 @@
 
 #include <cmath>
 #include <cstdio>
+#include <fstream>
 #include <random>
+#include <sstream>
+#include <string>
 
 #include "lidbox/analysis/verification.hpp"
 #include "lidbox/base/error.hpp"
@@ -106,4 +109,81 @@ TEST_CASE("rank histogram puts each observation in the bin of the members below 
   CHECK(b1 + b2 == 400);
   CHECK(b1 > 150);
   CHECK(b2 > 150);
+}
+
+namespace {
+
+struct Reference {
+  std::vector<double> observation;
+  std::vector<std::vector<double>> members;
+  double level = 0.0;
+  std::vector<double> brier;  // BS, REL, RES, UNC
+  std::vector<std::vector<double>> reliability;
+  std::vector<long long> histogram;
+  std::vector<long long> table;
+  std::vector<double> scores;
+};
+
+Reference read_reference() {
+  std::ifstream in(std::string(LIDBOX_SOURCE_DIR) +
+                   "/tests/analysis/data/verification_reference.txt");
+  REQUIRE(in.good());
+  Reference r;
+  std::string line;
+  while (std::getline(in, line)) {
+    std::istringstream s(line);
+    std::string key;
+    s >> key;
+    std::vector<double> v;
+    for (double x; s >> x;) v.push_back(x);
+    if (key == "observation") r.observation = v;
+    if (key == "members") r.members.push_back(v);
+    if (key == "level") r.level = v.at(0);
+    if (key == "brier") r.brier = v;
+    if (key == "reliability") r.reliability.push_back(v);
+    if (key == "rank_histogram") r.histogram.assign(v.begin(), v.end());
+    if (key == "table") r.table.assign(v.begin(), v.end());
+    if (key == "scores_pod_far_csi_bias_ets_hss_peirce") r.scores = v;
+  }
+  return r;
+}
+
+}  // namespace
+
+TEST_CASE("Brier decomposition, reliability table, rank histogram and 2x2 scores match numpy") {
+  // tests/reference/make_verification_reference.py (numpy, seed 20261202): 400 cases of a
+  // 10-member ensemble; test_verification_reference.py checks the file is its output.
+  const Reference ref = read_reference();
+  REQUIRE(ref.members.size() == 400);
+  std::vector<double> p;
+  std::vector<int> o;
+  ContingencyTable t;
+  for (std::size_t c = 0; c < ref.members.size(); ++c) {
+    int k = 0;
+    double sum = 0.0;
+    for (double x : ref.members[c]) {
+      k += x > ref.level ? 1 : 0;
+      sum += x;
+    }
+    p.push_back(static_cast<double>(k) / 10.0);
+    o.push_back(ref.observation[c] > ref.level ? 1 : 0);
+    t.add(sum / 10.0 > ref.level, o.back() == 1);
+  }
+  const BrierDecomposition b = brier_decomposition(p, o, "reference");
+  CHECK(b.brier == doctest::Approx(ref.brier[0]).epsilon(1e-12));
+  CHECK(b.reliability == doctest::Approx(ref.brier[1]).epsilon(1e-12));
+  CHECK(b.resolution == doctest::Approx(ref.brier[2]).epsilon(1e-12));
+  CHECK(b.uncertainty == doctest::Approx(ref.brier[3]).epsilon(1e-12));
+  REQUIRE(b.table.size() == ref.reliability.size());
+  for (std::size_t i = 0; i < b.table.size(); ++i) {
+    CHECK(b.table[i].forecast_probability == doctest::Approx(ref.reliability[i][0]));
+    CHECK(b.table[i].count == static_cast<long long>(ref.reliability[i][1]));
+    CHECK(b.table[i].observed_frequency == doctest::Approx(ref.reliability[i][2]).epsilon(1e-14));
+  }
+  CHECK(rank_histogram(ref.members, ref.observation, 1, "reference") == ref.histogram);
+  CHECK(std::vector<long long>{t.a, t.b, t.c, t.d} == ref.table);
+  const CategoricalScores s = categorical_scores(t);
+  const double mine[] = {s.pod, s.far, s.csi, s.frequency_bias, s.ets, s.hss, s.peirce};
+  for (int i = 0; i < 7; ++i)
+    CHECK(mine[i] == doctest::Approx(ref.scores[static_cast<std::size_t>(i)]).epsilon(1e-12));
 }
