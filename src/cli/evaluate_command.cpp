@@ -7,6 +7,7 @@
 #include <sstream>
 
 #include "lidbox/analysis/calibrated_case.hpp"
+#include "lidbox/analysis/ensemble_verification.hpp"
 #include "lidbox/analysis/model_evaluation.hpp"
 #include "lidbox/analysis/sector_fit.hpp"
 #include "lidbox/base/atomic_file.hpp"
@@ -120,7 +121,16 @@ void run(const EvaluateArgs& a) {
   const BelowDetection below = parse_below_detection(a.below, "--below-detection");
   // Read every monitor before the run, so that a bad file is refused at once.
   std::vector<Observations> observations;
-  for (const auto& f : a.monitors) observations.push_back(read_observations_csv(f));
+  for (std::size_t k = 0; k < a.monitors.size(); ++k) {
+    for (std::size_t j = 0; j < k; ++j) {
+      if (std::filesystem::path(a.monitors[j]).lexically_normal() ==
+          std::filesystem::path(a.monitors[k]).lexically_normal()) {
+        throw InputError(a.monitors[k], "given twice",
+                         "each monitor file once (its hours would count twice)");
+      }
+    }
+    observations.push_back(read_observations_csv(a.monitors[k]));
+  }
   const std::vector<RuleSet> rules = rules_for(c, a);
   const MetSeries met = read_case_met(c);
   Progress progress;
@@ -137,8 +147,22 @@ void run(const EvaluateArgs& a) {
     for (auto& m : pair_monitor(c, r, obs, a.pollutant, below, &in.skipped))
       in.monitors.push_back(std::move(m));
   }
+  // Labels name monitors in tables and charts: two files with one stem keep their paths.
+  for (auto& m : in.monitors) {
+    for (const auto& other : in.monitors) {
+      if (other.label == m.label && other.monitor != m.monitor) m.label = m.monitor;
+    }
+  }
   for (const auto& m : in.monitors) in.modelled.push_back(model_total(c, r, m.case_index));
   in.before = evaluate_run(c, r, in.monitors, rules);
+  if (c.ensemble) {
+    // The members' daily probabilities per rule against the monitors' own day calls.
+    const EnsembleOutcome ens =
+        forecast_ensemble(c, met, rules, [&progress](double f) { progress.update(f, "ensemble"); });
+    progress.finish();
+    in.ensemble_members = ens.members.size();
+    in.ensemble = verify_ensemble(in.before, ens.rules, a.seed);
+  }
 
   const std::string dir = a.output_dir.empty()
                               ? (std::filesystem::path("outputs") / (c.name + "-evaluate")).string()
@@ -236,9 +260,11 @@ void add_evaluate_command(CLI::App& app, int& exit_code) {
                   "Fit scales: nnls (non-negative least squares) or bayes (Gaussian priors)");
   sub->add_flag("--offset", a->offset, "Also fit a constant offset (any sign)");
   sub->add_flag("--no-background", a->no_background, "Hold the background at its case value");
-  sub->add_option("--hold", a->hold, "Hold this sector at its case value (repeatable)");
+  sub->add_option("--hold", a->hold, "Hold this sector at its case value (repeatable)")
+      ->allow_extra_args(false);
   sub->add_option("--prior", a->priors,
-                  "Bayesian prior NAME=MEAN:SD of a scale (repeatable; default 1:1)");
+                  "Bayesian prior NAME=MEAN:SD of a scale (repeatable; default 1:1)")
+      ->allow_extra_args(false);
   sub->add_option(
       "--obs-error", a->obs_error,
       "Bayesian observation error, one hour, in the case's unit (default: the NNLS residual s.d.)");

@@ -229,6 +229,65 @@ std::string fit_section(const EvaluationReportInput& in) {
   return o.str();
 }
 
+std::string ensemble_section(const EvaluationReportInput& in) {
+  std::ostringstream o;
+  o << "\n## Ensemble (" << in.ensemble_members << " members) against the monitors\n\n"
+    << "Probability of exceeding = members exceeding / members (member counting; a finite "
+       "ensemble does not prove 0 % or 100 %). Outcome = the monitor's own day call. Brier score "
+       "BS = REL - RES + UNC (Murphy 1973), BSS = 1 - BS/UNC against the sample climatology. "
+       "Rank = members below the monitor's day value, on days every member completes (a flat "
+       "histogram is what a reliable ensemble gives; Hamill 2001).\n\n";
+  if (in.ensemble.empty()) {
+    o << "No rule with daily calls judges the paired pollutants.\n";
+    return o.str();
+  }
+  o << "| monitor | rule | days | BS | reliability | resolution | uncertainty | BSS | rank "
+       "histogram (days) |\n|---|---|---|---|---|---|---|---|---|\n";
+  for (const auto& e : in.ensemble) {
+    std::vector<std::string> h;
+    for (long long k : e.rank_histogram) h.push_back(std::to_string(k));
+    o << "| " << e.monitor << " | " << e.rule_set_id << " " << e.limit_id << " (" << e.statistic
+      << " > " << format_number(e.level, 6) << " " << e.unit << ") | " << e.brier.n << " | "
+      << num(e.brier.brier, 3) << " | " << num(e.brier.reliability, 3) << " | "
+      << num(e.brier.resolution, 3) << " | " << num(e.brier.uncertainty, 3) << " | "
+      << num(e.brier.skill, 3) << " | " << join(h, " ") << " (" << e.days_ranked << ") |\n";
+  }
+  o << "\nReliability tables (forecast probability: days, observed frequency)\n\n";
+  for (const auto& e : in.ensemble) {
+    std::vector<std::string> rows;
+    for (const auto& r : e.brier.table) {
+      rows.push_back(format_number(r.forecast_probability, 3) + ": " + std::to_string(r.count) +
+                     ", " + num(r.observed_frequency, 3));
+    }
+    o << "- " << e.monitor << " " << e.rule_set_id << " " << e.limit_id << ": " << join(rows, "; ")
+      << "\n";
+  }
+  return o.str();
+}
+
+std::string ensemble_csv(const EvaluationReportInput& in) {
+  std::ostringstream o;
+  o << "monitor,rule_set,limit,pollutant,daily_value,level,unit,members,days,brier,reliability,"
+       "resolution,uncertainty,brier_skill,table,forecast_probability,days_with_probability,"
+       "observed_frequency,rank,days_at_rank\n";
+  for (const auto& e : in.ensemble) {
+    const std::string head = e.monitor + "," + e.rule_set_id + "," + e.limit_id + "," +
+                             e.pollutant + "," + e.statistic + "," + format_number(e.level, 10) +
+                             "," + e.unit + "," + std::to_string(e.members) + "," +
+                             std::to_string(e.brier.n) + "," + csv_num(e.brier.brier) + "," +
+                             csv_num(e.brier.reliability) + "," + csv_num(e.brier.resolution) +
+                             "," + csv_num(e.brier.uncertainty) + "," + csv_num(e.brier.skill);
+    for (const auto& r : e.brier.table) {
+      o << head << ",reliability," << format_number(r.forecast_probability, 10) << "," << r.count
+        << "," << csv_num(r.observed_frequency) << ",,\n";
+    }
+    for (std::size_t k = 0; k < e.rank_histogram.size(); ++k) {
+      o << head << ",rank_histogram,,,," << k << "," << e.rank_histogram[k] << "\n";
+    }
+  }
+  return o.str();
+}
+
 std::string render_markdown(const EvaluationReportInput& in) {
   const CaseSpec& c = *in.c;
   std::ostringstream o;
@@ -267,6 +326,7 @@ std::string render_markdown(const EvaluationReportInput& in) {
   evaluation(in.before, in.before.model_label);
   o << "### Criteria sources\n\n";
   criteria_sources(o, in.before);
+  if (!in.ensemble.empty() || in.ensemble_members > 0) o << ensemble_section(in);
   o << "\n## Profiles (" << in.before.model_label << ")\n";
   profiles_section(o, in.before);
   o << "\n";
@@ -693,6 +753,7 @@ std::vector<OutputFile> render_evaluation_outputs(const EvaluationReportInput& i
                                    {"timeseries.svg", render_evaluation_timeseries_svg(in)},
                                    {"scatter.svg", render_evaluation_scatter_svg(in)},
                                    {"summary.txt", summary_text(in)}};
+  if (in.ensemble_members > 0) files.push_back({"ensemble_verification.csv", ensemble_csv(in)});
   if (in.fit && in.design) {
     files.push_back({"fit.csv", fit_csv(*in.fit)});
     files.push_back({"fit_matrix.csv", fit_matrix_csv(*in.design)});

@@ -149,3 +149,20 @@ TEST_CASE("a steady run against a steady monitor gives perfect agreement and dai
   }
   CHECK(ev.profiles.front().hour_count[5] == 3);
 }
+
+TEST_CASE("a detection-limit cell without a number is refused with its line and column") {
+  try {
+    parse_observations_csv("time,PM2.5 [ug/m3]\n2026-01-05T00:00Z,<abc\n", "lod.csv");
+    FAIL("no error");
+  } catch (const InputError& e) {
+    CHECK(std::string(e.what()) ==
+          "lod.csv:2: column \"PM2.5 [ug m-3]\": value \"<abc\"; expected a detection limit \"<L\" "
+          "with a number L >= 0");
+  }
+  const Observations o = parse_observations_csv(
+      "time,PM2.5 [ug/m3]\n2026-01-05T00:00Z,<2.5\n2026-01-05T02:00Z,4\n", "lod.csv");
+  REQUIRE(o.below_detection.at("PM2.5").size() == 3);  // as long as the series, gap included
+  CHECK(o.below_detection.at("PM2.5")[0] == 2.5);
+  CHECK(std::isnan(o.below_detection.at("PM2.5")[2]));
+  CHECK(std::isnan(o.series.at("PM2.5").values[0]));  // the standards see a missing value
+}

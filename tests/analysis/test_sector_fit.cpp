@@ -132,7 +132,7 @@ TEST_CASE("monitors made from the model with known scales and no noise are fitte
 }
 
 TEST_CASE(
-    "with noise the fit recovers the scales within two standard errors, Gaussian and bootstrap") {
+    "with noise the fit recovers the scales within three standard errors, Gaussian and bootstrap") {
   const unsigned seed = 4242;
   std::printf("seed %u\n", seed);
   const CaseSpec c = parse_case(kCase, "fit.toml", ".");
@@ -238,4 +238,40 @@ TEST_CASE(
   const auto rerun = model_total(cc, rc, 0);
   for (std::size_t i = 0; i < rerun.size(); i += 7)
     CHECK(rerun[i] == doctest::Approx(fitted[i]).epsilon(1e-9));
+}
+
+TEST_CASE(
+    "a sector the monitors do not see is held at bound and several weighted monitors fit "
+    "together") {
+  const unsigned seed = 99;
+  std::printf("seed %u\n", seed);
+  const CaseSpec c = parse_case(kCase, "fit.toml", ".");
+  const RunResult r = run_case(c, met(24 * 20));
+  // Monitor 1 without heating at all (scale 0) and noise; monitor 2 the same with other noise.
+  auto a = pair_monitor(c, r, monitor_from(c, r, 1.0, 1.0, 0.0, 0.5, seed), "",
+                        BelowDetection::half_limit, nullptr);
+  auto b = pair_monitor(c, r, monitor_from(c, r, 1.0, 1.0, 0.0, 2.0, seed + 1), "",
+                        BelowDetection::half_limit, nullptr);
+  std::vector<MonitorPollutant> both = {a.front(), b.front()};
+  SectorFitOptions o;
+  o.monitor_weights = {4.0, 0.25};  // 1/variance of each monitor's noise
+  const FitDesign d = build_fit_design(c, r, both, o);
+  CHECK(d.y.size() == 2 * r.hours.size());
+  const SectorFitReport f = fit_sectors(d, o);
+  REQUIRE(f.estimates.size() == 3);
+  CHECK(f.estimates[2].name == "heating");
+  CHECK(f.estimates[2].at_bound);
+  CHECK(f.estimates[2].value == 0.0);
+  CHECK(std::isnan(f.estimates[2].gaussian_se));
+  CHECK(f.dofs == 2.0);
+  CHECK(std::fabs(f.estimates[1].value - 1.0) < 3.0 * f.estimates[1].gaussian_se);
+  bool warned = false;
+  for (const auto& w : f.warnings) {
+    warned = warned ||
+             w == "heating: at bound (held at 0 by the constraint; no Gaussian standard error)";
+  }
+  CHECK(warned);
+  // Weights that are not one per monitor are refused.
+  o.monitor_weights = {1.0};
+  CHECK_THROWS_AS(build_fit_design(c, r, both, o), InputError);
 }

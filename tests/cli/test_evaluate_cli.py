@@ -94,6 +94,12 @@ with tempfile.TemporaryDirectory() as tmp:
         rc2, _, se2 = run(["run", cal, "-o", os.path.join(tmp, "calrun"), "-q"])
         check(rc2 == 0, "the calibrated case runs from its own folder: " + se2)
 
+    # --hold and --prior take one value each, wherever they stand among the positionals.
+    rc, so, se = run(["evaluate", "--hold", "home_heating", CASE, mon, "--pollutant", "PM2.5", "--fit", "nnls",
+                      "--bootstrap", "0", "-o", os.path.join(tmp, "hold")])
+    check(rc == 0 and "home_heating: held at 1 (--hold)" in open(os.path.join(tmp, "hold", "evaluation.md")).read(),
+          "--hold before the case: " + se)
+
     # Bad input.
     late = os.path.join(tmp, "late.csv")
     write(late, "time,PM2.5 [ug/m3]\n2025-07-01T00:00Z,5\n2025-07-01T01:00Z,6\n")
@@ -119,6 +125,39 @@ with tempfile.TemporaryDirectory() as tmp:
     refused(["evaluate", collinear, mon, "--pollutant", "PM2.5", "--fit", "nnls", "--no-background"],
             os.path.join(tmp, "x5"), "the fit's columns traffic, copy: hour-by-hour responses at the monitors "
             "that are linearly dependent", "all sectors collinear")
+
+    # An ensemble case: the members' daily probabilities against an invented monitor made from the
+    # control run with +-30 % noise. Brier score from the reliability table (o is 0 or 1, so
+    # sum over a group of (p - o)^2 = n (p^2 - 2 p f + f)), Murphy's identity, histogram bins.
+    fcase = os.path.join(SOURCE, "met-demo", "cindervale-forecast.toml")
+    rc, so, se = run(["run", fcase, "-o", os.path.join(tmp, "fc"), "-q"])
+    check(rc == 0, "run the forecast demo: " + se)
+    import random
+    rnd = random.Random(3)
+    fc = list(csv.DictReader(open(os.path.join(tmp, "fc", "hourly.csv")))) if rc == 0 else []
+    fmon = os.path.join(tmp, "fcmon.csv")
+    write(fmon, "# INVENTED monitor for a command-line test\ntime,PM2.5 [ug/m3],PM10 [ug/m3]\n" + "".join(
+        "%s,%.1f,%.1f\n" % (r["period_start_utc"], float(r["PM25_hour_mean [ug m-3]"]) * rnd.uniform(0.7, 1.3),
+                           float(r["PM10_hour_mean [ug m-3]"]) * rnd.uniform(0.7, 1.3)) for r in fc))
+    eout = os.path.join(tmp, "ens")
+    rc, so, se = run(["evaluate", fcase, fmon, "--rules", "who-2021,eu-2008-50", "-o", eout])
+    check(rc == 0, "evaluate an ensemble case: " + se)
+    rows = list(csv.DictReader(open(os.path.join(eout, "ensemble_verification.csv")))) if rc == 0 else []
+    check(len({(r["rule_set"], r["limit"]) for r in rows}) >= 3, "ensemble rows for several rules")
+    for key in {(r["monitor"], r["rule_set"], r["limit"]) for r in rows}:
+        sel = [r for r in rows if (r["monitor"], r["rule_set"], r["limit"]) == key]
+        head = sel[0]
+        n, bs = int(head["days"]), float(head["brier"])
+        rel, res, unc = float(head["reliability"]), float(head["resolution"]), float(head["uncertainty"])
+        table = [(float(r["forecast_probability"]), int(r["days_with_probability"]), float(r["observed_frequency"]))
+                 for r in sel if r["table"] == "reliability"]
+        check(abs(sum(k * (p * p - 2 * p * f + f) for p, k, f in table) / n - bs) < 1e-9, "%s: BS from the table" % (key,))
+        check(abs(bs - (rel - res + unc)) < 1e-9, "%s: BS = REL - RES + UNC" % (key,))
+        ranks = [int(r["days_at_rank"]) for r in sel if r["table"] == "rank_histogram"]
+        check(len(ranks) == int(head["members"]) + 1, "%s: members + 1 rank bins" % (key,))
+        check(0 < sum(ranks) <= n, "%s: ranked days" % (key,))
+    check("## Ensemble (12 members) against the monitors" in open(os.path.join(eout, "evaluation.md")).read()
+          if rc == 0 else False, "the report's ensemble section")
 
     # The charts render (headless chromium, when installed) to a picture that is not blank.
     chromium = shutil.which("chromium")

@@ -14,6 +14,8 @@
 //   timeseries.svg         the model's hour means with the monitor overlaid (and the fit)
 //   scatter.svg            modelled against observed hour means, 1:1 and factor-2 lines
 //   summary.txt            the few lines the command prints
+//   ensemble_verification.csv  with an [ensemble]: Brier score and decomposition, reliability
+//                          table and rank histogram per monitor and rule
 //   fit.csv, fit_matrix.csv with a fit: the estimates, and the weighted problem itself (rows of
 //                          monitor, hour, weight, y minus the fixed parts, and the columns), so
 //                          that anyone can refit it
@@ -23,6 +25,7 @@
 #include <string>
 #include <vector>
 
+#include "lidbox/analysis/ensemble_verification.hpp"
 #include "lidbox/analysis/model_evaluation.hpp"
 #include "lidbox/analysis/sector_fit.hpp"
 #include "lidbox/base/atomic_file.hpp"
@@ -39,6 +42,9 @@ struct EvaluationReportInput {
   BelowDetection below = BelowDetection::half_limit;
   std::vector<std::string> rule_set_ids;
   ModelEvaluation before;
+  // With an [ensemble] in the case: its daily probabilities verified against the monitors.
+  std::size_t ensemble_members = 0;
+  std::vector<EnsembleRuleVerification> ensemble;
   // With a fit:
   std::optional<SectorFitReport> fit;
   const FitDesign* design = nullptr;        // the fit's matrix (fit_matrix.csv)
