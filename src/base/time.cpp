@@ -1,11 +1,17 @@
 #include "lidbox/base/time.hpp"
 
-#include <boost/date_time/local_time/local_time.hpp>
-#include <boost/date_time/posix_time/posix_time.hpp>
-#include <cctype>
-#include <cstdio>
+#include <date/tz.h>
 
+#include <algorithm>
+#include <cstdio>
+#include <fstream>
+#include <limits>
+#include <sstream>
+#include <vector>
+
+#include "base/posix_tz.hpp"
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/text.hpp"
 
 namespace lidbox {
 
@@ -84,7 +90,9 @@ std::string format_utc_offset(int offset_s) {
   return std::string(1, sign) + two(a / 3600) + ":" + two((a % 3600) / 60);
 }
 
-std::string format_utc(UtcSeconds t) { return format_civil(civil_from_utc_seconds(t)) + "Z"; }
+std::string format_utc(UtcSeconds t) {
+  return format_civil(civil_from_utc_seconds(t)) + "Z";
+}
 
 std::string format_with_offset(UtcSeconds t, int offset_s) {
   return format_civil(civil_from_utc_seconds(t + offset_s)) + format_utc_offset(offset_s);
@@ -93,97 +101,23 @@ std::string format_with_offset(UtcSeconds t, int offset_s) {
 // ---------------------------------------------------------------------------------------------
 // Time zones
 
+namespace {
+
+// Where Debian's tzdata installs the compiled zones, the folder libdate-tz reads (USE_OS_TZDB).
+constexpr const char* kZoneinfoDir = "/usr/share/zoneinfo";
+
+}  // namespace
+
 struct TimeZone::Rules {
-  boost::local_time::time_zone_ptr zone;  // Boost form, sign already corrected
-  int dst_offset_s = 0;                   // civil offset while daylight saving is in force
+  posix_tz::Zone posix;  // a POSIX string's rules, or an IANA zone's TZif footer rule
+  const date::time_zone* iana = nullptr;
+  // For an IANA zone: from this instant on the footer rule applies. libdate-tz reads only the
+  // explicit transitions of the TZif file (up to 2037 in Debian's files) and would freeze the
+  // last offset after them; RFC 8536, section 3.3, says the footer extends the table.
+  UtcSeconds footer_from = std::numeric_limits<UtcSeconds>::max();
 };
 
 namespace {
-
-namespace lt = boost::local_time;
-namespace pt = boost::posix_time;
-
-// A tiny cursor over the TZ text, for the POSIX grammar (IEEE Std 1003.1, 8.3):
-//   std offset [dst [offset] [,start[/time],end[/time]]]
-struct Cursor {
-  std::string_view s;
-  std::size_t i = 0;
-  [[nodiscard]] bool done() const { return i >= s.size(); }
-  [[nodiscard]] char peek() const { return done() ? '\0' : s[i]; }
-};
-
-bool read_name(Cursor& c, std::string& name) {
-  name.clear();
-  if (c.peek() == '<') {
-    ++c.i;
-    while (!c.done() && c.peek() != '>') name.push_back(c.s[c.i++]);
-    if (c.peek() != '>') return false;
-    ++c.i;
-    return name.size() >= 3;
-  }
-  while (!c.done() && std::isalpha(static_cast<unsigned char>(c.peek()))) name.push_back(c.s[c.i++]);
-  return name.size() >= 3;
-}
-
-bool read_number(Cursor& c, int max_digits, int& value) {
-  int digits = 0;
-  value = 0;
-  while (!c.done() && std::isdigit(static_cast<unsigned char>(c.peek())) && digits < max_digits) {
-    value = value * 10 + (c.s[c.i++] - '0');
-    ++digits;
-  }
-  return digits > 0;
-}
-
-// [+|-]hh[:mm[:ss]] -> seconds, POSIX sign (positive = west of Greenwich).
-bool read_hms(Cursor& c, int& seconds, bool allow_sign) {
-  int sign = 1;
-  if (allow_sign && (c.peek() == '+' || c.peek() == '-')) {
-    sign = c.peek() == '-' ? -1 : 1;
-    ++c.i;
-  }
-  int h = 0, m = 0, s = 0;
-  if (!read_number(c, 3, h) || h > 167) return false;
-  if (c.peek() == ':') {
-    ++c.i;
-    if (!read_number(c, 2, m) || m > 59) return false;
-    if (c.peek() == ':') {
-      ++c.i;
-      if (!read_number(c, 2, s) || s > 59) return false;
-    }
-  }
-  seconds = sign * (h * 3600 + m * 60 + s);
-  return true;
-}
-
-// Jn | n | Mm.w.d [/time]; returns the rule text in Boost's syntax.
-bool read_rule(Cursor& c, std::string& boost_rule) {
-  const std::size_t start = c.i;
-  int a = 0, b = 0, d = 0;
-  if (c.peek() == 'M') {
-    ++c.i;
-    if (!read_number(c, 2, a) || a < 1 || a > 12 || c.peek() != '.') return false;
-    ++c.i;
-    if (!read_number(c, 1, b) || b < 1 || b > 5 || c.peek() != '.') return false;
-    ++c.i;
-    if (!read_number(c, 1, d) || d > 6) return false;
-  } else if (c.peek() == 'J') {
-    ++c.i;
-    if (!read_number(c, 3, a) || a < 1 || a > 365) return false;
-  } else {
-    if (!read_number(c, 3, a) || a > 365) return false;
-  }
-  std::string rule(c.s.substr(start, c.i - start));
-  int t = 7200;  // POSIX default transition time 02:00:00
-  if (c.peek() == '/') {
-    ++c.i;
-    if (!read_hms(c, t, false)) return false;
-  }
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "/%02d:%02d:%02d", t / 3600, (t % 3600) / 60, t % 60);
-  boost_rule = rule + buf;
-  return true;
-}
 
 // Fixed offsets: "UTC", "GMT", "Z", "+01:00", "-05", "+0530", "UTC+01:00".
 bool parse_fixed(std::string_view spec, int& offset_s) {
@@ -215,20 +149,59 @@ bool parse_fixed(std::string_view spec, int& offset_s) {
   return true;
 }
 
-std::string boost_offset(int east_s) {
-  const char sign = east_s < 0 ? '-' : '+';
-  const int a = east_s < 0 ? -east_s : east_s;
-  char buf[16];
-  std::snprintf(buf, sizeof buf, "%c%02d:%02d", sign, a / 3600, (a % 3600) / 60);
-  return buf;
+// The POSIX string after the last newline of a TZif v2+ file (RFC 8536, section 3.3), or "".
+std::string tzif_footer(const std::string& zone_name) {
+  std::ifstream in(std::string(kZoneinfoDir) + "/" + zone_name, std::ios::binary);
+  if (!in) return "";
+  std::ostringstream all;
+  all << in.rdbuf();
+  const std::string bytes = all.str();
+  if (bytes.size() < 2 || bytes.back() != '\n') return "";
+  const std::size_t open = bytes.rfind('\n', bytes.size() - 2);
+  if (open == std::string::npos) return "";
+  return bytes.substr(open + 1, bytes.size() - open - 2);
 }
 
-pt::ptime to_ptime(UtcSeconds t) {
-  static const pt::ptime epoch(boost::gregorian::date(1970, 1, 1));
-  return epoch + pt::seconds(static_cast<long>(t));
+// An IANA zone name from the system database (libdate-tz lists every file under the zoneinfo
+// folder, links such as "US/Mountain" included), or null. Throws InputError only when the database
+// itself cannot be read.
+const date::time_zone* find_iana(std::string_view spec, std::string_view where,
+                                 std::vector<std::string>* names) {
+  try {
+    const date::tzdb& db = date::get_tzdb();
+    for (const auto& z : db.zones) {
+      if (z.name() == spec) return &z;
+    }
+    if (names) {
+      for (const auto& z : db.zones) names->push_back(z.name());
+    }
+    return nullptr;
+  } catch (const std::exception& e) {
+    throw InputError(std::string(where),
+                     "the system's time-zone database in " + std::string(kZoneinfoDir) +
+                         " could not be read (" + e.what() + ")",
+                     "the tzdata package installed, or a fixed offset or POSIX TZ string");
+  }
 }
 
 }  // namespace
+
+std::string tzdata_version() {
+  try {
+    const std::string& v = date::get_tzdb().version;
+    if (!v.empty() && v != "unknown") return v;
+  } catch (const std::exception&) {
+    return "unknown";
+  }
+  // Debian ships no "+VERSION" file, which is where libdate-tz looks; tzdata.zi starts with
+  // "# version 2026f" (tzfile(5) / zic(8) text form).
+  std::ifstream in(std::string(kZoneinfoDir) + "/tzdata.zi");
+  std::string line;
+  if (in && std::getline(in, line) && line.rfind("# version ", 0) == 0) {
+    return std::string(trim(line.substr(10)));
+  }
+  return "unknown";
+}
 
 TimeZone::TimeZone() = default;
 
@@ -240,59 +213,72 @@ TimeZone TimeZone::parse(std::string_view spec, std::string_view where) {
     z.standard_offset_s_ = fixed;
     return z;
   }
-  const std::string expected =
-      "a fixed offset such as \"+01:00\" or \"UTC\", or a POSIX TZ string such as "
-      "\"CET-1CEST,M3.5.0,M10.5.0/3\" (POSIX sign: hours WEST of Greenwich are positive)";
-  const auto bad = [&](const std::string& why) {
-    return InputError(std::string(where), "time zone \"" + std::string(spec) + "\" " + why,
-                      expected);
-  };
-  Cursor c{spec};
-  std::string std_name, dst_name;
-  int std_west = 0;
-  if (!read_name(c, std_name)) throw bad("does not start with a zone name of 3 or more letters");
-  if (!read_hms(c, std_west, true)) throw bad("has no valid offset after its standard-time name");
-  z.standard_offset_s_ = -std_west;
-  if (c.done()) return z;  // POSIX string without daylight saving: a fixed offset
-  if (!read_name(c, dst_name)) throw bad("has an invalid daylight-saving name");
-  int dst_west = std_west - 3600;  // POSIX default: one hour ahead of standard time
-  if (c.peek() != ',' && !c.done()) {
-    if (!read_hms(c, dst_west, true)) throw bad("has an invalid daylight-saving offset");
-  }
-  std::string start_rule, end_rule;
-  if (c.peek() != ',') throw bad("names daylight saving but gives no ',start,end' rule");
-  ++c.i;
-  if (!read_rule(c, start_rule)) throw bad("has an invalid start rule");
-  if (c.peek() != ',') throw bad("has no end rule");
-  ++c.i;
-  if (!read_rule(c, end_rule)) throw bad("has an invalid end rule");
-  if (!c.done()) throw bad("has unexpected text at position " + std::to_string(c.i + 1));
-
-  const int std_east = -std_west;
-  const int dst_east = -dst_west;
-  // Boost wants east-positive offsets, alphabetic names and the DST offset as the difference.
-  const std::string boost_spec = "STD" + boost_offset(std_east) + "DST" +
-                                 boost_offset(dst_east - std_east) + "," + start_rule + "," +
-                                 end_rule;
   auto rules = std::make_shared<Rules>();
-  try {
-    rules->zone.reset(new lt::posix_time_zone(boost_spec));
-  } catch (const std::exception& e) {
-    throw bad(std::string("was refused by the rule parser (") + e.what() + ")");
+  const std::string posix_error = posix_tz::parse(spec, true, rules->posix);
+  if (posix_error.empty()) {
+    z.kind_ = Kind::posix;
+    z.standard_offset_s_ = rules->posix.std_east_s;
+    z.has_dst_ = rules->posix.has_dst;
+    if (z.has_dst_) z.rules_ = std::move(rules);
+    return z;
   }
-  rules->dst_offset_s = dst_east;
+  std::vector<std::string> names;
+  const date::time_zone* iana = find_iana(spec, where, &names);
+  if (!iana) {
+    const std::string shown =
+        spec.size() > 80 ? std::string(spec.substr(0, 80)) + "..." : std::string(spec);
+    const bool looks_like_name = spec.find('/') != std::string_view::npos;
+    throw InputError(
+        std::string(where),
+        "time zone \"" + shown + "\" " +
+            (looks_like_name
+                 ? "is not in the system's time-zone database" + did_you_mean(spec, names)
+                 : posix_error),
+        "a fixed offset such as \"+01:00\" or \"UTC\", an IANA zone name such as "
+        "\"Europe/Paris\", or a POSIX TZ string such as \"CET-1CEST,M3.5.0,M10.5.0/3\" (POSIX "
+        "sign: hours WEST of Greenwich are positive)");
+  }
+  z.kind_ = Kind::iana;
+  rules->iana = iana;
+  const date::sys_info last = iana->get_info(date::sys_days{date::year{9999} / date::January / 1});
+  posix_tz::Zone footer;
+  const std::string text = tzif_footer(iana->name());
+  if (!text.empty() && posix_tz::parse(text, false, footer).empty()) {
+    rules->posix = footer;
+    rules->footer_from = last.begin.time_since_epoch().count();
+    z.standard_offset_s_ = footer.std_east_s;
+    z.has_dst_ = footer.has_dst;
+  } else {
+    z.standard_offset_s_ = static_cast<int>(last.offset.count());
+  }
   z.rules_ = std::move(rules);
-  z.has_dst_ = true;
   return z;
 }
 
 int TimeZone::civil_offset_s(UtcSeconds t) const {
   if (!rules_) return standard_offset_s_;
-  const lt::local_date_time ldt(to_ptime(t), rules_->zone);
-  return ldt.is_dst() ? rules_->dst_offset_s : standard_offset_s_;
+  if (!rules_->iana || t >= rules_->footer_from) return posix_tz::civil_offset_s(rules_->posix, t);
+  // date::year holds -32767..32767; every lidbox reader stays within -9999..9999.
+  const UtcSeconds bounded = std::clamp<UtcSeconds>(t, -400'000'000'000LL, 400'000'000'000LL);
+  return static_cast<int>(
+      rules_->iana->get_info(date::sys_seconds{std::chrono::seconds{bounded}}).offset.count());
 }
 
-CivilTime TimeZone::civil(UtcSeconds t) const { return civil_from_utc_seconds(t + civil_offset_s(t)); }
+std::string TimeZone::kind_label() const {
+  switch (kind_) {
+    case Kind::iana:
+      return "IANA tzdata " + tzdata_version();
+    case Kind::posix:
+      return "POSIX TZ string";
+    case Kind::fixed:
+      break;
+  }
+  return "fixed offset";
+}
+
+CivilTime TimeZone::civil(UtcSeconds t) const {
+  return civil_from_utc_seconds(t + civil_offset_s(t));
+}
 
 CivilTime TimeZone::standard(UtcSeconds t) const {
   return civil_from_utc_seconds(t + standard_offset_s_);
@@ -301,16 +287,20 @@ CivilTime TimeZone::standard(UtcSeconds t) const {
 UtcSeconds TimeZone::from_civil(const CivilTime& local, std::string_view where) const {
   const UtcSeconds as_utc = utc_seconds_from_civil(local);
   if (!rules_) return as_utc - standard_offset_s_;
-  const UtcSeconds a = as_utc - standard_offset_s_;
-  const UtcSeconds b = as_utc - rules_->dst_offset_s;
-  const bool a_ok = civil_offset_s(a) == standard_offset_s_;
-  const bool b_ok = civil_offset_s(b) == rules_->dst_offset_s;
+  // The offsets in force a day either side are the only candidates (clock changes are more than
+  // a day apart in every rule and in tzdata); a candidate holds when the zone agrees with it.
+  const int before = civil_offset_s(as_utc - kSecondsPerDay);
+  const int after = civil_offset_s(as_utc + kSecondsPerDay);
+  const UtcSeconds a = as_utc - before;
+  const UtcSeconds b = as_utc - after;
+  const bool a_ok = civil_offset_s(a) == before;
+  const bool b_ok = civil_offset_s(b) == after;
   if (a_ok && b_ok && a != b) {
     throw InputError(std::string(where),
                      "local time " + format_civil(local) + " occurs twice in zone \"" + spec_ +
                          "\" (clocks go back)",
                      "a time with an explicit UTC offset such as \"" + format_civil(local) +
-                         format_utc_offset(rules_->dst_offset_s) + "\"");
+                         format_utc_offset(std::max(before, after)) + "\"");
   }
   if (a_ok) return a;
   if (b_ok) return b;

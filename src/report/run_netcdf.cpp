@@ -43,6 +43,7 @@ void describe_case(CfTable& t, const CaseSpec& c, const std::string& what) {
   t.global_attributes["case_title"] = c.title;
   t.global_attributes["case_file"] = c.file;
   t.global_attributes["time_zone"] = c.zone.spec();
+  t.global_attributes["time_zone_source"] = c.zone.kind_label();
   t.global_attributes["invented"] = c.invented ? "true" : "false";
   if (c.invented) {
     t.global_attributes["comment"] =

@@ -100,7 +100,7 @@ std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunRes
   const UtcSeconds t0 = r.hours.front().start_utc;
   const UtcSeconds t1 = r.hours.back().start_utc + kSecondsPerHour;
   o << "Period   " << format_utc(t0) << " to " << format_utc(t1) << " (" << n << " hours), time zone "
-    << c.zone.spec() << "\n";
+    << c.zone.spec() << " (" << c.zone.kind_label() << ")\n";
   std::size_t filled = 0, calm = 0, lid = 0;
   for (const auto& h : r.hours) {
     filled += h.filled;

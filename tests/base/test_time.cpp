@@ -36,7 +36,8 @@ TEST_CASE("an ISO time without an offset needs a zone, and bad times are refused
   CHECK_THROWS_AS((void)parse_iso8601("2026-01-05T13:00:00.5Z", nullptr, "t"), InputError);
   CHECK_THROWS_AS((void)parse_iso8601("05/01/2026 13:00", nullptr, "t"), InputError);
   const TimeZone plus2 = TimeZone::parse("+02:00", "t");
-  CHECK(parse_iso8601("2026-01-05T15:00", &plus2, "t") == parse_iso8601("2026-01-05T13:00Z", nullptr, "t"));
+  CHECK(parse_iso8601("2026-01-05T15:00", &plus2, "t") ==
+        parse_iso8601("2026-01-05T13:00Z", nullptr, "t"));
 }
 
 TEST_CASE("a POSIX TZ string follows the POSIX sign and the EU summer-time rule") {
@@ -78,14 +79,99 @@ TEST_CASE("local times skipped or repeated at a clock change are errors naming t
           "a time with an explicit UTC offset");
   }
   CHECK_THROWS_AS((void)parse_iso8601("2026-11-01T01:30", &est, "t"), InputError);
-  CHECK(parse_iso8601("2026-11-01T00:30", &est, "t") == parse_iso8601("2026-11-01T04:30Z", nullptr, "t"));
+  CHECK(parse_iso8601("2026-11-01T00:30", &est, "t") ==
+        parse_iso8601("2026-11-01T04:30Z", nullptr, "t"));
 }
 
 TEST_CASE("malformed zones are refused instead of silently meaning UTC") {
-  CHECK_THROWS_AS((void)TimeZone::parse("Europe/Paris", "t"), InputError);
+  CHECK_THROWS_AS((void)TimeZone::parse("Europe/Pariss", "t"), InputError);
   CHECK_THROWS_AS((void)TimeZone::parse("garbage", "t"), InputError);
   CHECK_THROWS_AS((void)TimeZone::parse("CET-1CEST", "t"), InputError);
   CHECK_THROWS_AS((void)TimeZone::parse("+25:00", "t"), InputError);
   CHECK(TimeZone::parse("<+0530>-5:30", "t").standard_offset_s() == 19800);
   CHECK(TimeZone::parse("-0330", "t").standard_offset_s() == -12600);
+}
+
+TEST_CASE("IANA zone names follow the system tzdata, also after its explicit table ends in 2037") {
+  // EU summer time: last Sunday of March 01:00 UTC to last Sunday of October 01:00 UTC
+  // (Directive 2000/84/EC, Art. 2 and 3); CET is UTC+1. In 2026: 29 March and 25 October; in
+  // 2050: 27 March (proleptic Gregorian weekday arithmetic, python3 datetime).
+  const TimeZone paris = TimeZone::parse("Europe/Paris", "case.toml: time_zone");
+  CHECK(paris.from_tz_database());
+  CHECK(paris.standard_offset_s() == 3600);
+  CHECK(paris.has_daylight_saving());
+  const UtcSeconds on = parse_iso8601("2026-03-29T01:00:00Z", nullptr, "t");
+  CHECK(paris.civil_offset_s(on - 1) == 3600);
+  CHECK(paris.civil_offset_s(on) == 7200);
+  CHECK(paris.civil_offset_s(parse_iso8601("2026-10-25T00:59:59Z", nullptr, "t")) == 7200);
+  CHECK(paris.civil_offset_s(parse_iso8601("2026-10-25T01:00:00Z", nullptr, "t")) == 3600);
+  const UtcSeconds on_2050 = parse_iso8601("2050-03-27T01:00:00Z", nullptr, "t");
+  CHECK(paris.civil_offset_s(on_2050 - 1) == 3600);
+  CHECK(paris.civil_offset_s(on_2050) == 7200);
+  // US Mountain time, UTC-7, with the daylight rule of 15 U.S.C. 260a: 8 March 2026 02:00 MST.
+  const TimeZone denver = TimeZone::parse("America/Denver", "t");
+  CHECK(denver.standard_offset_s() == -7 * 3600);
+  CHECK(denver.civil_offset_s(parse_iso8601("2026-03-08T08:59:59Z", nullptr, "t")) == -7 * 3600);
+  CHECK(denver.civil_offset_s(parse_iso8601("2026-03-08T09:00:00Z", nullptr, "t")) == -6 * 3600);
+  CHECK(denver.civil_offset_s(parse_iso8601("2060-07-01T00:00:00Z", nullptr, "t")) == -6 * 3600);
+  // A local time in an IANA zone, and one skipped by the spring change.
+  CHECK(parse_iso8601("2026-07-01T12:00", &denver, "t") ==
+        parse_iso8601("2026-07-01T18:00Z", nullptr, "t"));
+  CHECK_THROWS_AS((void)parse_iso8601("2026-03-08T02:30", &denver, "t"), InputError);
+  // A link name of the database reaches its zone.
+  CHECK(TimeZone::parse("US/Mountain", "t").civil_offset_s(on) == -6 * 3600);
+  CHECK(tzdata_version() != "unknown");
+}
+
+TEST_CASE("a misspelt IANA name is refused with a suggestion") {
+  try {
+    (void)TimeZone::parse("Europe/Pariss", "case.toml: time_zone");
+    FAIL("no error");
+  } catch (const InputError& e) {
+    CHECK(std::string(e.what()) ==
+          "case.toml: time_zone: time zone \"Europe/Pariss\" is not in the system's time-zone "
+          "database (did you mean \"Europe/Paris\"?); expected a fixed offset such as \"+01:00\" "
+          "or \"UTC\", an IANA zone name such as \"Europe/Paris\", or a POSIX TZ string such as "
+          "\"CET-1CEST,M3.5.0,M10.5.0/3\" (POSIX sign: hours WEST of Greenwich are positive)");
+  }
+}
+
+TEST_CASE("daylight-saving zones answer in the year 500") {
+  // Proleptic Gregorian calendar: the last Sunday of March 500 is the 28th, of October the 31st
+  // (python3 datetime, which counts proleptic Gregorian days). Boost.Date_Time stops at 1400.
+  const TimeZone cet = TimeZone::parse("CET-1CEST,M3.5.0,M10.5.0/3", "t");
+  const UtcSeconds on = parse_iso8601("0500-03-28T01:00:00Z", nullptr, "t");
+  CHECK(cet.civil_offset_s(on - 1) == 3600);
+  CHECK(cet.civil_offset_s(on) == 7200);
+  CHECK(cet.civil_offset_s(parse_iso8601("0500-10-31T01:00:00Z", nullptr, "t")) == 3600);
+  CHECK(parse_iso8601("0500-07-01T14:00", &cet, "met.csv:2") ==
+        parse_iso8601("0500-07-01T12:00Z", nullptr, "t"));
+  const TimeZone denver = TimeZone::parse("America/Denver", "t");
+  // Before the zone's first transition tzdata gives local mean time, -6:59:56 for Denver.
+  CHECK(denver.civil_offset_s(on) == -(6 * 3600 + 59 * 60 + 56));
+}
+
+TEST_CASE("zero-based POSIX day rules count February 29 in leap years") {
+  // IEEE Std 1003.1, section 8.3: "n" is the zero-based Julian day (0 <= n <= 365), leap days
+  // counted. Day 59 is 29 February 2024 and 1 March 2025; day 300 is 27 October 2024
+  // (python3 datetime: date(2024,1,1) + 59 days).
+  const TimeZone z = TimeZone::parse("MST7MDT,59,300", "t");
+  CHECK(z.civil_offset_s(parse_iso8601("2024-02-29T08:59:59Z", nullptr, "t")) == -7 * 3600);
+  CHECK(z.civil_offset_s(parse_iso8601("2024-02-29T09:00:00Z", nullptr, "t")) == -6 * 3600);
+  CHECK(z.civil_offset_s(parse_iso8601("2025-02-28T12:00:00Z", nullptr, "t")) == -7 * 3600);
+  CHECK(z.civil_offset_s(parse_iso8601("2025-03-01T09:00:00Z", nullptr, "t")) == -6 * 3600);
+  // The end: 02:00 MDT on 27 October 2024 is 08:00 UTC.
+  CHECK(z.civil_offset_s(parse_iso8601("2024-10-27T07:59:59Z", nullptr, "t")) == -6 * 3600);
+  CHECK(z.civil_offset_s(parse_iso8601("2024-10-27T08:00:00Z", nullptr, "t")) == -7 * 3600);
+}
+
+TEST_CASE("a POSIX rule that ends before it starts in the year spans the new year") {
+  // MST7MDT,M3.2.0,31: daylight time from the second Sunday of March (8 March 2026) to day 31,
+  // 1 February of the next year (IEEE Std 1003.1, section 8.3; the southern-hemisphere form).
+  const TimeZone z = TimeZone::parse("MST7MDT,M3.2.0,31", "t");
+  CHECK(z.civil_offset_s(parse_iso8601("2026-01-15T00:00:00Z", nullptr, "t")) == -6 * 3600);
+  CHECK(z.civil_offset_s(parse_iso8601("2026-02-01T07:59:59Z", nullptr, "t")) == -6 * 3600);
+  CHECK(z.civil_offset_s(parse_iso8601("2026-02-01T08:00:00Z", nullptr, "t")) == -7 * 3600);
+  CHECK(z.civil_offset_s(parse_iso8601("2026-03-08T08:59:59Z", nullptr, "t")) == -7 * 3600);
+  CHECK(z.civil_offset_s(parse_iso8601("2026-03-08T09:00:00Z", nullptr, "t")) == -6 * 3600);
 }

@@ -92,10 +92,10 @@ with tempfile.TemporaryDirectory() as tmp:
     check(rc == 2 and se.strip() == "lidbox: error: rule set \"us-naqs\": not found in %s; expected "
           "one of eu-2008-50, eu-2024-2881, us-naaqs, who-2021 (did you mean \"us-naaqs\"?)"
           % rules_dir, "unknown id: %d %r" % (rc, se))
-    rc, so, se = run(["observe", good, "--lst-offset", "CET", "--out", out2])
-    check(rc == 2 and se.strip() == "lidbox: error: --lst-offset: time zone \"CET\" has no valid "
+    rc, so, se = run(["observe", good, "--lst-offset", "CEST", "--out", out2])
+    check(rc == 2 and se.strip() == "lidbox: error: --lst-offset: time zone \"CEST\" has no valid "
           "offset after its standard-time name; expected a fixed offset such as \"+01:00\" or "
-          "\"UTC\", or a POSIX TZ string such as \"CET-1CEST,M3.5.0,M10.5.0/3\" (POSIX sign: hours "
+          "\"UTC\", an IANA zone name such as \"Europe/Paris\", or a POSIX TZ string such as \"CET-1CEST,M3.5.0,M10.5.0/3\" (POSIX sign: hours "
           "WEST of Greenwich are positive)", "bad offset: %d %r" % (rc, se))
     rc, so, se = run(["observe", good, "--out", out2])
     check(rc == 2 and se.strip() == "--lst-offset is required\nRun with --help for more information.",

@@ -232,7 +232,7 @@ def test_bad_inputs():
     expect_error("zone",
                  'case.toml:7: (top level) time_zone: time zone "Mountain" has no valid offset '
                  "after its standard-time name; expected a fixed offset such as \"+01:00\" or "
-                 '"UTC", or a POSIX TZ string such as "CET-1CEST,M3.5.0,M10.5.0/3" (POSIX sign: '
+                 '"UTC", an IANA zone name such as "Europe/Paris", or a POSIX TZ string such as "CET-1CEST,M3.5.0,M10.5.0/3" (POSIX sign: '
                  "hours WEST of Greenwich are positive)",
                  case_edit=('time_zone = "MST7MDT,M3.2.0,M11.1.0"', 'time_zone = "Mountain"'))
     expect_error("decreasing time",

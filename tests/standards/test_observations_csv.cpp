@@ -97,9 +97,13 @@ TEST_CASE("UTC offsets for local standard time") {
   // A zone with daylight saving gives its standard offset: daily statistics use local standard
   // time (40 CFR 50 App. N, section 1(c)).
   CHECK(parse_utc_offset_s("EST5EDT,M3.2.0,M11.1.0", "x") == -18000);
-  CHECK_THROWS_WITH_AS(parse_utc_offset_s("CET", "--lst-offset"),
-                       "--lst-offset: time zone \"CET\" has no valid offset after its standard-time name; "
-                       "expected a fixed offset such as \"+01:00\" or \"UTC\", or a POSIX TZ string "
+  // tzdata's zone "CET" is UTC+1 in winter (Directive 2000/84/EC keeps CET as standard time).
+  CHECK(parse_utc_offset_s("CET", "x") == 3600);
+  CHECK(parse_utc_offset_s("America/Denver", "x") == -7 * 3600);
+  CHECK_THROWS_WITH_AS(parse_utc_offset_s("CEST", "--lst-offset"),
+                       "--lst-offset: time zone \"CEST\" has no valid offset after its standard-time name; "
+                       "expected a fixed offset such as \"+01:00\" or \"UTC\", an IANA zone name "
+                       "such as \"Europe/Paris\", or a POSIX TZ string "
                        "such as \"CET-1CEST,M3.5.0,M10.5.0/3\" (POSIX sign: hours WEST of "
                        "Greenwich are positive)",
                        InputError);

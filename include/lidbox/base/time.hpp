@@ -4,11 +4,14 @@
 // Instants are whole seconds since 1970-01-01T00:00:00Z (UtcSeconds); leap seconds are not
 // counted (POSIX time, and CF "standard" calendar values with units_metadata leap_seconds: none).
 //
-// Time zones are given either as a fixed offset ("UTC", "Z", "+01:00", "-0530") or as a POSIX TZ
-// string with the POSIX sign convention, the one the TZ environment variable uses:
-// "CET-1CEST,M3.5.0,M10.5.0/3" is one hour AHEAD of UTC (IEEE Std 1003.1, section 8.3, "TZ").
-// Boost.Date_Time's posix_time_zone uses the opposite sign and silently accepts garbage, so this
-// layer validates the string itself and hands Boost a canonical, sign-corrected form.
+// Time zones are given as a fixed offset ("UTC", "Z", "+01:00", "-0530"), as an IANA zone name
+// from the system's time-zone database ("America/Denver", "Europe/Paris"; Debian's tzdata read
+// through libdate-tz, H. Hinnant's date library), or as a POSIX TZ string with the POSIX sign
+// convention, the one the TZ environment variable uses: "CET-1CEST,M3.5.0,M10.5.0/3" is one hour
+// AHEAD of UTC (IEEE Std 1003.1, section 8.3, "TZ"). POSIX strings are read and evaluated by
+// lidbox (src/base/posix_tz.hpp) for every year from -9999 to 9999.
+// An IANA zone's "standard offset" is that of its current rule (the TZif footer, RFC 8536
+// section 3.3): daily statistics in local standard time use today's standard time of the zone.
 #pragma once
 
 #include <cstdint>
@@ -25,17 +28,17 @@ inline constexpr UtcSeconds kSecondsPerDay = 86400;
 // Broken-down wall-clock time.
 struct CivilTime {
   int year = 1970;
-  int month = 1;   // 1..12
-  int day = 1;     // 1..31
-  int hour = 0;    // 0..23
-  int minute = 0;  // 0..59
-  int second = 0;  // 0..59
+  int month = 1;        // 1..12
+  int day = 1;          // 1..31
+  int hour = 0;         // 0..23
+  int minute = 0;       // 0..59
+  int second = 0;       // 0..59
   int day_of_week = 4;  // 0 = Monday ... 6 = Sunday (ISO 8601 order)
 };
 
 // Days since 1970-01-01 of a proleptic Gregorian date, and back (H. Hinnant's civil algorithms).
 std::int64_t days_from_civil(int year, int month, int day);
-CivilTime civil_from_utc_seconds(UtcSeconds t);  // the UTC wall clock of an instant
+CivilTime civil_from_utc_seconds(UtcSeconds t);         // the UTC wall clock of an instant
 UtcSeconds utc_seconds_from_civil(const CivilTime& c);  // treats c as UTC
 
 // "2026-01-05T13:00:00Z"
@@ -48,7 +51,8 @@ std::string format_with_offset(UtcSeconds t, int offset_s);
 class TimeZone {
  public:
   TimeZone();  // UTC
-  // "UTC", "Z", "+01:00", "-05", "+0530", or a POSIX TZ string. InputError naming `where`.
+  // "UTC", "Z", "+01:00", "-05", "+0530", a POSIX TZ string, or an IANA name. InputError naming
+  // `where`, with a suggestion for a misspelt IANA name.
   static TimeZone parse(std::string_view spec, std::string_view where);
 
   [[nodiscard]] int standard_offset_s() const { return standard_offset_s_; }
@@ -61,14 +65,23 @@ class TimeZone {
   // exists twice (repeated at the autumn change) is an InputError naming `where`.
   [[nodiscard]] UtcSeconds from_civil(const CivilTime& local, std::string_view where) const;
   [[nodiscard]] const std::string& spec() const { return spec_; }
+  // True for an IANA name (then tzdata_version() says which database answered).
+  [[nodiscard]] bool from_tz_database() const { return kind_ == Kind::iana; }
+  // What the zone is, for the outputs' metadata: "IANA tzdata 2026f", "POSIX TZ string" or
+  // "fixed offset".
+  [[nodiscard]] std::string kind_label() const;
 
  private:
   struct Rules;
   std::string spec_ = "UTC";
   int standard_offset_s_ = 0;
   bool has_dst_ = false;
+  enum class Kind { fixed, posix, iana } kind_ = Kind::fixed;
   std::shared_ptr<const Rules> rules_;  // null for fixed offsets
 };
+
+// The version of the system's tzdata ("2026f"), or "unknown"; for the outputs' metadata.
+std::string tzdata_version();
 
 // ISO 8601 date-time, "YYYY-MM-DDThh:mm[:ss[.fff]]" followed by "Z", "+hh:mm", "+hhmm" or "+hh";
 // a space may stand for "T". Without an offset the time is local civil time in `zone_for_naive`,

@@ -43,7 +43,8 @@ Observations read_observations_csv(const std::filesystem::path& path);
 // InputError naming `where` otherwise.
 UtcSeconds parse_instant_with_offset(std::string_view text, std::string_view where);
 
-// "+01:00", "-05:00", "+0530", "-05", "UTC", "Z" -> seconds east of UTC (|offset| <= 14 h).
+// "+01:00", "-05:00", "+0530", "-05", "UTC", "Z" -> seconds east of UTC (|offset| <= 14 h); a
+// POSIX TZ string or an IANA name ("America/Denver") gives the zone's standard offset (time.hpp).
 int parse_utc_offset_s(std::string_view text, std::string_view where);
 
 }  // namespace lidbox
