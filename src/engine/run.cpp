@@ -29,6 +29,23 @@ double RunResult::closure_g_m2(std::size_t hour, std::size_t p, bool residual_la
   return storage - lines;
 }
 
+std::vector<double> RunResult::closure_series_g_m2(bool residual_layer) const {
+  std::vector<double> out(hours.size() * n_pollutants);
+  for (std::size_t p = 0; p < n_pollutants; ++p) {
+    double lines = 0.0;
+    for (std::size_t i = 0; i < hours.size(); ++i) {
+      const BudgetTerms& b = budget_of(i, p);
+      lines += residual_layer ? b.mixed_layer_change() + b.residual_layer_change() : b.mixed_layer_change();
+      double storage = mixed_mass(i, p) - initial_mixed_mass_g_m2[p];
+      if (residual_layer) {
+        storage += residual_mass(i, p) - initial_residual_mass_g_m2[p];
+      }
+      out[at(i, p)] = storage - lines;
+    }
+  }
+  return out;
+}
+
 double RunResult::relative_closure(std::size_t p, bool residual_layer) const {
   if (hours.empty()) return 0.0;
   double scale = 0.0;

@@ -206,6 +206,7 @@ CfTable budget_cf_table(const CaseSpec& c, const RunResult& r) {
        "carried out of the residual layer"},
   };
   const std::size_t n = r.hours.size();
+  const std::vector<double> closure = r.closure_series_g_m2(rl);
   for (std::size_t p = 0; p < r.n_pollutants; ++p) {
     const std::string P = cf_variable_name(c.pollutants[p].name);
     const std::string& name = c.pollutants[p].name;
@@ -227,7 +228,7 @@ CfTable budget_cf_table(const CaseSpec& c, const RunResult& r) {
     for (std::size_t i = 0; i < n; ++i) {
       mm.values.push_back(r.mixed_mass(i, p) * A);
       rm.values.push_back(r.residual_mass(i, p) * A);
-      cl.values.push_back(r.closure_g_m2(i, p, rl) * A);
+      cl.values.push_back(closure[r.at(i, p)] * A);
     }
     t.vars.push_back(std::move(mm));
     t.vars.push_back(std::move(rm));

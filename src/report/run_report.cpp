@@ -65,6 +65,7 @@ std::string render_budget_csv(const CaseSpec& c, const RunResult& r) {
   const bool rl = c.engine.residual_layer;
   const double A = c.footprint.area_m2();
   std::ostringstream o;
+  const std::vector<double> closure = r.closure_series_g_m2(rl);
   o << "period_start_utc,pollutant,emitted [g/h],advected_in [g/h],advected_out [g/h],reacted [g/h],"
        "deposited [g/h],entrained_from_residual [g/h],entrained_from_free_troposphere [g/h],"
        "detrained [g/h],residual_reacted [g/h],residual_advected_in [g/h],"
@@ -82,7 +83,7 @@ std::string render_budget_csv(const CaseSpec& c, const RunResult& r) {
         o << ',' << format_number(v * A, 10);
       }
       char buf[32];
-      std::snprintf(buf, sizeof buf, "%.3e", r.closure_g_m2(i, p, rl) * A);
+      std::snprintf(buf, sizeof buf, "%.3e", closure[r.at(i, p)] * A);
       o << ',' << buf << '\n';
     }
   }
