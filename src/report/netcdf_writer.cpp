@@ -6,10 +6,12 @@
 
 #include <atomic>
 #include <cctype>
+#include <charconv>
 #include <chrono>
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
+#include <cstring>
 #include <filesystem>
 #include <set>
 
@@ -81,10 +83,30 @@ void check_table(const CfTable& t) {
   }
 }
 
+// The time of the run for `history`: SOURCE_DATE_EPOCH when it is set (seconds since 1970, the
+// reproducible-builds convention, https://reproducible-builds.org/specs/source-date-epoch/), so
+// that a run can be repeated byte for byte; otherwise the wall clock. A value that is not a
+// whole number of seconds is ignored, as the convention allows.
 std::string now_utc() {
+  if (const char* e = std::getenv("SOURCE_DATE_EPOCH")) {
+    long long t = 0;
+    const char* end = e + std::strlen(e);
+    const auto [p, ec] = std::from_chars(e, end, t);
+    if (ec == std::errc() && p == end && p != e && t >= 0) return format_utc(t);
+  }
   const auto now = std::chrono::system_clock::now();
   return format_utc(
       std::chrono::duration_cast<std::chrono::seconds>(now.time_since_epoch()).count());
+}
+
+// Whole series in one contiguous block (NetCDF-4 only; NetCDF-3 stores fixed-size variables
+// contiguously anyway).
+void contiguous(int nc, int var, const std::string& name) {
+  int format = 0;
+  ok(nc_inq_format(nc, &format), "format");
+  if (format == NC_FORMAT_NETCDF4 || format == NC_FORMAT_NETCDF4_CLASSIC) {
+    ok(nc_def_var_chunking(nc, var, NC_CONTIGUOUS, nullptr), "storage of " + name);
+  }
 }
 
 // Ids of what write_file defines, for the data phase.
@@ -110,12 +132,15 @@ void define_globals(int nc, const CfTable& t) {
 // Dimensions, time, time bounds, the station's scalar coordinates (CF 4.4, Appendix H.4).
 void define_coordinates(int nc, const CfTable& t, Layout& L) {
   const bool bounds = t.period_s > 0;
-  ok(nc_def_dim(nc, "time", NC_UNLIMITED, &L.time_dim), "dimension time");
+  // The length is known: a fixed dimension, stored contiguously (below), instead of an unlimited
+  // one in chunks of 512 values.
+  ok(nc_def_dim(nc, "time", t.time_utc.size(), &L.time_dim), "dimension time");
   if (bounds) ok(nc_def_dim(nc, "nv", 2, &L.nv_dim), "dimension nv");
   const bool has_station = !t.station_name.empty();
   if (has_station)
     ok(nc_def_dim(nc, "name_strlen", t.station_name.size(), &L.strlen_dim), "dimension name_strlen");
   ok(nc_def_var(nc, "time", NC_DOUBLE, 1, &L.time_dim, &L.time_var), "variable time");
+  contiguous(nc, L.time_var, "time");
   text_att(nc, L.time_var, "standard_name", "time");
   text_att(nc, L.time_var, "long_name", bounds ? "start of the averaging period" : "time");
   text_att(nc, L.time_var, "units", cf_hours_since(t.time_utc.front()));
@@ -128,6 +153,7 @@ void define_coordinates(int nc, const CfTable& t, Layout& L) {
              "each value covers the period [time_bnds(0), time_bnds(1)); time is its start");
     const int dims[2] = {L.time_dim, L.nv_dim};
     ok(nc_def_var(nc, "time_bnds", NC_DOUBLE, 2, dims, &L.bnds_var), "variable time_bnds");
+    contiguous(nc, L.bnds_var, "time_bnds");
   }
   const auto scalar = [&](const char* name, const char* sn, const char* units, double value) {
     int v = 0;
@@ -155,6 +181,7 @@ int define_variable(int nc, const CfVariable& v, const Layout& L) {
   int id = 0;
   ok(nc_def_var(nc, v.name.c_str(), flag ? NC_BYTE : NC_DOUBLE, 1, &L.time_dim, &id),
      "variable " + v.name);
+  contiguous(nc, id, v.name);
   if (!flag) {
     const double fill = NC_FILL_DOUBLE;
     ok(nc_put_att_double(nc, id, "_FillValue", NC_DOUBLE, 1, &fill), "_FillValue of " + v.name);
@@ -227,6 +254,24 @@ void write_file(int nc, const CfTable& t) {
 }
 
 }  // namespace
+
+void write_cf_file(const std::string& path, const CfTable& table, CfFileFormat format) {
+  check_table(table);
+  const int mode =
+      NC_CLOBBER |
+      (format == CfFileFormat::netcdf4_classic ? (NC_NETCDF4 | NC_CLASSIC_MODEL) : NC_64BIT_OFFSET);
+  int nc = -1;
+  try {
+    ok(nc_create(path.c_str(), mode, &nc), "create");
+    write_file(nc, table);
+    const int st = nc_close(nc);
+    nc = -1;
+    ok(st, "close");
+  } catch (const WriteFailure& e) {
+    if (nc >= 0) nc_close(nc);
+    throw InputError(path, "writing failed (" + e.what + ")", "a writable output location");
+  }
+}
 
 void write_cf_timeseries(const std::string& path, const CfTable& table, CfFileFormat format) {
   check_table(table);
