@@ -4,12 +4,12 @@
 #include <iostream>
 #include <memory>
 
-#include "lidbox/base/atomic_file.hpp"
+#include "lidbox/analysis/run_standards.hpp"
+#include "lidbox/base/output_folder.hpp"
 #include "lidbox/engine/case_file.hpp"
 #include "lidbox/engine/run.hpp"
-#include "lidbox/report/run_report.hpp"
 #include "lidbox/report/run_netcdf.hpp"
-#include "lidbox/analysis/run_standards.hpp"
+#include "lidbox/report/run_report.hpp"
 #include "progress.hpp"
 
 namespace lidbox::cli {
@@ -40,6 +40,9 @@ void add_run_command(CLI::App& app, int& exit_code) {
   run->callback([opt, &exit_code] {
     const CaseSpec c = load_case(opt->case_file);
     const MetSeries met = read_case_met(c);
+    // The output folder is checked and its temporary made before the run, so a bad place
+    // fails at once rather than after a long run.
+    OutputFolder out(opt->output_dir.empty() ? c.output_directory : opt->output_dir);
     Progress progress;
     const RunResult r =
         run_case(c, met, [&progress](double f, const char* stage) { progress.update(f, stage); });
@@ -47,16 +50,11 @@ void add_run_command(CLI::App& app, int& exit_code) {
     std::optional<UtcSeconds> issue;
     if (!opt->issue_time.empty()) issue = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
     const auto standards = run_standards(c, r, issue);
-    auto files = render_run_outputs(c, met, r, standards ? &*standards : nullptr);
-    if (opt->netcdf || c.netcdf_output) {
-      for (auto& f : render_run_netcdf_outputs(c, r, standards ? &*standards : nullptr)) {
-        files.push_back(std::move(f));
-      }
-    }
-    const std::string dir = opt->output_dir.empty() ? c.output_directory : opt->output_dir;
-    const auto written = write_output_files(dir, files);
+    const std::string summary = write_run_outputs(out, c, met, r, standards ? &*standards : nullptr,
+                                                  opt->netcdf || c.netcdf_output);
+    const auto written = out.publish();
     if (!opt->quiet) {
-      std::cout << output_named(files, "summary.txt").content << "\nWritten:";
+      std::cout << summary << "\nWritten:";
       for (const auto& w : written) std::cout << ' ' << w.string();
       std::cout << '\n';
     }

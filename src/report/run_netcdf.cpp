@@ -4,6 +4,8 @@
 #include <cctype>
 #include <cmath>
 #include <cstdio>
+#include <functional>
+#include <memory>
 
 #include "lidbox/base/error.hpp"
 #include "lidbox/met/netcdf_met.hpp"
@@ -333,23 +335,48 @@ std::vector<CfTable> running_means_cf_tables(const CaseSpec& c, const StandardsR
   return tables;
 }
 
-std::vector<OutputFile> render_run_netcdf_outputs(const CaseSpec& c, const RunResult& r,
-                                                  const StandardsReport* standards,
-                                                  CfFileFormat format) {
-  std::vector<OutputFile> out = {
-      {"hourly.nc", render_cf_timeseries(hourly_cf_table(c, r), format)},
-      {"budget.nc", render_cf_timeseries(budget_cf_table(c, r), format)}};
+namespace {
+
+// The run's NetCDF files by name, each table built only when its file is written.
+std::vector<std::pair<std::string, std::function<CfTable()>>> run_netcdf_tables(
+    const CaseSpec& c, const RunResult& r, const StandardsReport* standards) {
+  std::vector<std::pair<std::string, std::function<CfTable()>>> out;
+  out.emplace_back("hourly.nc", [&c, &r] { return hourly_cf_table(c, r); });
+  out.emplace_back("budget.nc", [&c, &r] { return budget_cf_table(c, r); });
   if (standards && !standards->daily.empty()) {
-    out.push_back(
-        {"daily.nc", render_cf_timeseries(daily_statistics_cf_table(c, *standards), format)});
+    out.emplace_back("daily.nc",
+                     [&c, standards] { return daily_statistics_cf_table(c, *standards); });
   }
   if (standards) {
-    for (const CfTable& t : running_means_cf_tables(c, *standards)) {
-      out.push_back({"rolling_" + std::to_string(t.period_s / kSecondsPerHour) + "h.nc",
-                     render_cf_timeseries(t, format)});
+    // Rolling tables are small (one value per window); built together, handed out one by one.
+    auto rolling = std::make_shared<std::vector<CfTable>>(running_means_cf_tables(c, *standards));
+    for (std::size_t k = 0; k < rolling->size(); ++k) {
+      out.emplace_back(
+          "rolling_" + std::to_string((*rolling)[k].period_s / kSecondsPerHour) + "h.nc",
+          [rolling, k] { return std::move((*rolling)[k]); });
     }
   }
   return out;
+}
+
+}  // namespace
+
+std::vector<OutputFile> render_run_netcdf_outputs(const CaseSpec& c, const RunResult& r,
+                                                  const StandardsReport* standards,
+                                                  CfFileFormat format) {
+  std::vector<OutputFile> out;
+  for (const auto& [name, table] : run_netcdf_tables(c, r, standards)) {
+    out.push_back({name, render_cf_timeseries(table(), format)});
+  }
+  return out;
+}
+
+void write_run_netcdf_outputs(OutputFolder& folder, const CaseSpec& c, const RunResult& r,
+                              const StandardsReport* standards, CfFileFormat format) {
+  for (const auto& [name, table] : run_netcdf_tables(c, r, standards)) {
+    write_cf_file(folder.staged(name).string(), table(), format);
+    folder.adopt(name);
+  }
 }
 
 }  // namespace lidbox

@@ -56,9 +56,11 @@ std::uint64_t output_work(std::size_t hours) {
   REQUIRE(standards);
   const auto dir = lidbox::test::scratch_dir("output_work_" + std::to_string(hours));
   work_meter::reset();
-  auto files = render_run_outputs(c, met, r, &*standards);
-  for (auto& f : render_run_netcdf_outputs(c, r, &*standards)) files.push_back(std::move(f));
-  (void)write_output_files(dir, files);
+  {
+    OutputFolder folder(std::filesystem::path(dir) / "out");
+    (void)write_run_outputs(folder, c, met, r, &*standards, true);
+    (void)folder.publish();
+  }
   const std::uint64_t w = work_meter::total();
   std::filesystem::remove_all(dir);
   return w;

@@ -28,9 +28,10 @@
 #include <vector>
 
 #include "lidbox/base/atomic_file.hpp"
+#include "lidbox/base/output_folder.hpp"
 #include "lidbox/engine/case_file.hpp"
-#include "lidbox/report/netcdf_writer.hpp"
 #include "lidbox/engine/run.hpp"
+#include "lidbox/report/netcdf_writer.hpp"
 #include "lidbox/standards/standards_report.hpp"
 
 namespace lidbox {
@@ -47,11 +48,16 @@ CfTable daily_statistics_cf_table(const CaseSpec& c, const StandardsReport& repo
 std::vector<CfTable> running_means_cf_tables(const CaseSpec& c, const StandardsReport& report);
 
 // {"hourly.nc", "budget.nc"}, with a report that has daily rows "daily.nc", and one
-// "rolling_<k>h.nc" per requested window, rendered in memory to join render_run_outputs() in one
-// atomic set.
+// "rolling_<k>h.nc" per requested window, rendered in memory (a run writes them with
+// write_run_netcdf_outputs).
 std::vector<OutputFile> render_run_netcdf_outputs(
     const CaseSpec& c, const RunResult& r, const StandardsReport* standards = nullptr,
     CfFileFormat format = CfFileFormat::netcdf4_classic);
+// The same files written straight into a folder that is published as a whole, one table in
+// memory at a time.
+void write_run_netcdf_outputs(OutputFolder& folder, const CaseSpec& c, const RunResult& r,
+                              const StandardsReport* standards,
+                              CfFileFormat format = CfFileFormat::netcdf4_classic);
 
 // The CF standard name of a pollutant's concentration in its reporting unit, "" when lidbox
 // does not know the species. Names are matched loosely: "PM2.5", "PM25", "pm2p5"; "CO"; "NO2";
