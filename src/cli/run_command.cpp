@@ -44,14 +44,13 @@ void add_run_command(CLI::App& app, int& exit_code) {
     // fails at once rather than after a long run.
     OutputFolder out(opt->output_dir.empty() ? c.output_directory : opt->output_dir);
     Progress progress;
-    const RunResult r =
-        run_case(c, met, [&progress](double f, const char* stage) { progress.update(f, stage); });
-    progress.finish();
-    std::optional<UtcSeconds> issue;
-    if (!opt->issue_time.empty()) issue = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
-    const auto standards = run_standards(c, r, issue);
-    const std::string summary = write_run_outputs(out, c, met, r, standards ? &*standards : nullptr,
-                                                  opt->netcdf || c.netcdf_output);
+    RunWriteOptions o;
+    o.netcdf = opt->netcdf || c.netcdf_output;
+    if (!opt->issue_time.empty())
+      o.issue_time = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
+    o.progress = [&progress](double f, const char* stage) { progress.update(f, stage); };
+    o.after_run = [&progress] { progress.finish(); };
+    const std::string summary = run_and_write(out, c, met, o).summary;
     const auto written = out.publish();
     if (!opt->quiet) {
       std::cout << summary << "\nWritten:";

@@ -12,6 +12,7 @@
 
 #include "lidbox/analysis/run_standards.hpp"
 #include "lidbox/base/caution.hpp"
+#include "lidbox/base/error.hpp"
 #include "lidbox/base/work_meter.hpp"
 #include "lidbox/report/run_netcdf.hpp"
 
@@ -67,28 +68,83 @@ void write_hourly_csv(TextFile& f, const CaseSpec& c, const RunResult& r) {
   }
 }
 
-void write_budget_csv(TextFile& f, const CaseSpec& c, const RunResult& r) {
-  const bool rl = c.engine.residual_layer;
+namespace {
+
+const char* kBudgetHeader =
+    "period_start_utc,pollutant,emitted [g/h],advected_in [g/h],advected_out [g/h],reacted [g/h],"
+    "deposited [g/h],entrained_from_residual [g/h],entrained_from_free_troposphere [g/h],"
+    "detrained [g/h],residual_reacted [g/h],residual_advected_in [g/h],"
+    "residual_advected_out [g/h],mixed_layer_mass [g],residual_layer_mass [g],"
+    "cumulative_closure [g]\n";
+
+// The rows of hour i, one per pollutant; closure_g_m2[p] is the cumulative closure after it.
+void write_budget_rows(TextFile& f, const CaseSpec& c, const RunResult& r, std::size_t i,
+                       const double* closure_g_m2) {
   const double A = c.footprint.area_m2();
-  const std::vector<double> closure = r.closure_series_g_m2(rl);
-  f.text(
-      "period_start_utc,pollutant,emitted [g/h],advected_in [g/h],advected_out [g/h],reacted [g/h],"
-      "deposited [g/h],entrained_from_residual [g/h],entrained_from_free_troposphere [g/h],"
-      "detrained [g/h],residual_reacted [g/h],residual_advected_in [g/h],"
-      "residual_advected_out [g/h],mixed_layer_mass [g],residual_layer_mass [g],"
-      "cumulative_closure [g]\n");
-  for (std::size_t i = 0; i < r.hours.size(); ++i) {
-    for (std::size_t p = 0; p < r.n_pollutants; ++p) {
-      const BudgetTerms& b = r.budget_of(i, p);
-      f.utc(r.hours[i].start_utc).ch(',').text(c.pollutants[p].name);
-      for (double v : {b.emitted, b.advected_in, b.advected_out, b.reacted, b.deposited,
-                       b.entrained_from_residual, b.entrained_from_free_troposphere, b.detrained,
-                       b.residual_reacted, b.residual_advected_in, b.residual_advected_out,
-                       r.mixed_mass(i, p), r.residual_mass(i, p)}) {
-        f.ch(',').number(v * A, 10);
-      }
-      f.ch(',').scientific(closure[r.at(i, p)] * A, 3).ch('\n');
+  for (std::size_t p = 0; p < r.n_pollutants; ++p) {
+    const BudgetTerms& b = r.budget_of(i, p);
+    f.utc(r.hours[i].start_utc).ch(',').text(c.pollutants[p].name);
+    for (double v : {b.emitted, b.advected_in, b.advected_out, b.reacted, b.deposited,
+                     b.entrained_from_residual, b.entrained_from_free_troposphere, b.detrained,
+                     b.residual_reacted, b.residual_advected_in, b.residual_advected_out,
+                     r.mixed_mass(i, p), r.residual_mass(i, p)}) {
+      f.ch(',').number(v * A, 10);
     }
+    f.ch(',').scientific(closure_g_m2[p] * A, 3).ch('\n');
+  }
+}
+
+}  // namespace
+
+void write_budget_csv(TextFile& f, const CaseSpec& c, const RunResult& r) {
+  const std::vector<double> closure = r.closure_series_g_m2(c.engine.residual_layer);
+  f.text(kBudgetHeader);
+  for (std::size_t i = 0; i < r.hours.size(); ++i) {
+    write_budget_rows(f, c, r, i, closure.data() + i * r.n_pollutants);
+  }
+}
+
+BudgetStream::BudgetStream(OutputFolder& folder, const CaseSpec& c, bool netcdf,
+                           CfFileFormat format)
+    : folder_(folder), c_(c), netcdf_(netcdf), format_(format) {}
+
+BudgetStream::~BudgetStream() = default;
+
+void BudgetStream::hour(const RunResult& r, std::size_t i) {
+  const std::size_t P = r.n_pollutants;
+  if (i == 0) {
+    csv_ = std::make_unique<TextFile>(folder_, "budget.csv");
+    csv_->text(kBudgetHeader);
+    closure_.assign(P, 0.0);
+    if (netcdf_) {
+      nc_ = std::make_unique<CfStreamWriter>(folder_.staged("budget.nc").string(),
+                                             budget_cf_layout(c_, r), format_);
+      per_hour_ = budget_values_per_hour(r);
+      block_.assign(per_hour_ * kBlockHours, 0.0);
+      row_.assign(per_hour_, 0.0);
+    }
+  }
+  for (std::size_t p = 0; p < P; ++p) closure_[p] = r.closure_latest_g_m2(i, p);
+  write_budget_rows(*csv_, c_, r, i, closure_.data());
+  if (nc_) {
+    budget_hour_values(c_, r, i, closure_.data(), row_.data());
+    const std::size_t k = i - block_first_;
+    for (std::size_t v = 0; v < per_hour_; ++v) block_[v * kBlockHours + k] = row_[v];
+    if (k + 1 == kBlockHours || i + 1 == r.hours.size()) {
+      for (std::size_t v = 0; v < per_hour_; ++v) {
+        nc_->put(v, block_first_, block_.data() + v * kBlockHours, k + 1);
+      }
+      block_first_ = i + 1;
+    }
+  }
+}
+
+void BudgetStream::close() {
+  if (!csv_) throw InternalError("a budget stream closed before its first hour");
+  csv_->close();
+  if (nc_) {
+    nc_->close();
+    folder_.adopt("budget.nc");
   }
 }
 
@@ -335,11 +391,13 @@ std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const Met
     write_hourly_csv(f, c, r);
     f.close();
   });
-  tasks.emplace_back([&] {
-    TextFile f(folder, "budget.csv");
-    write_budget_csv(f, c, r);
-    f.close();
-  });
+  if (!r.budget_streamed) {
+    tasks.emplace_back([&] {
+      TextFile f(folder, "budget.csv");
+      write_budget_csv(f, c, r);
+      f.close();
+    });
+  }
   tasks.emplace_back([&] { folder.write_whole("chart.svg", render_chart_svg(c, r)); });
   tasks.emplace_back([&] {
     folder.write_whole("summary.txt", summary);
@@ -350,6 +408,23 @@ std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const Met
   });
   run_on_two_threads(tasks);
   return summary;
+}
+
+RunWritten run_and_write(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
+                         const RunWriteOptions& options) {
+  BudgetStream budget(folder, c, options.netcdf, options.format);
+  RunStreaming streaming;
+  streaming.keep_budget = false;
+  streaming.on_hour = [&budget](const RunResult& r, std::size_t i) { budget.hour(r, i); };
+  RunWritten out;
+  out.result = run_case(c, met, options.progress, streaming);
+  budget.close();
+  if (options.after_run) options.after_run();
+  out.standards = run_standards(c, out.result, options.issue_time);
+  out.summary =
+      write_run_outputs(folder, c, met, out.result, out.standards ? &*out.standards : nullptr,
+                        options.netcdf, options.format);
+  return out;
 }
 
 }  // namespace lidbox

@@ -47,18 +47,21 @@ MetSeries invented_met(std::size_t n) {
 }
 
 // The work of writing every output of a run of `hours` hours (tables, summary, chart, standards
-// tables and reports, NetCDF), as counted by the work meter.
+// tables and reports, NetCDF; the budget is written while the box steps), as counted by the work
+// meter: the whole run as the command line makes it.
 std::uint64_t output_work(std::size_t hours) {
   const CaseSpec c = parse_case(kCase, "work.toml", ".");
   const MetSeries met = invented_met(hours);
-  const RunResult r = run_case(c, met);
-  const auto standards = run_standards(c, r, std::nullopt);
-  REQUIRE(standards);
   const auto dir = lidbox::test::scratch_dir("output_work_" + std::to_string(hours));
+  RunWriteOptions o;
+  o.netcdf = true;
+  std::uint64_t stepping = 0;
+  o.after_run = [&stepping] { stepping = work_meter::total(); };
   work_meter::reset();
   {
     OutputFolder folder(std::filesystem::path(dir) / "out");
-    (void)write_run_outputs(folder, c, met, r, &*standards, true);
+    const RunWritten w = run_and_write(folder, c, met, o);
+    REQUIRE(w.standards);
     (void)folder.publish();
   }
   const std::uint64_t w = work_meter::total();

@@ -85,6 +85,28 @@ void write_cf_timeseries(const std::string& path, const CfTable& table,
 void write_cf_file(const std::string& path, const CfTable& table,
                    CfFileFormat format = CfFileFormat::netcdf4_classic);
 
+// The same file written variable block by variable block, for tables too long to hold: `layout`
+// gives the rows (time_utc) and the variables' descriptions, with no values. Every row of every
+// variable must be put before close(). Failures as above; an unclosed file is closed by the
+// destructor and left to its folder's cleanup.
+class CfStreamWriter {
+ public:
+  CfStreamWriter(std::string path, CfTable layout,
+                 CfFileFormat format = CfFileFormat::netcdf4_classic);
+  ~CfStreamWriter();
+  CfStreamWriter(const CfStreamWriter&) = delete;
+  CfStreamWriter& operator=(const CfStreamWriter&) = delete;
+  // Rows [first_row, first_row + n) of variable k (its index in layout.vars); NaN -> _FillValue.
+  void put(std::size_t k, std::size_t first_row, const double* values, std::size_t n);
+  void close();
+
+ private:
+  std::string path_;
+  CfTable layout_;
+  int nc_ = -1;
+  std::vector<int> ids_;
+};
+
 // The same file as bytes in memory (NetCDF-C in-memory files), for a caller that writes a set of
 // outputs all-or-nothing itself (atomic_file.hpp's OutputFile::content takes them as they are).
 // A malformed table is an InternalError, as above.

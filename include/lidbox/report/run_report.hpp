@@ -2,6 +2,9 @@
 // set by output_folder.hpp. Units are in every column header.
 #pragma once
 
+#include <functional>
+#include <memory>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -22,6 +25,34 @@ void write_hourly_csv(TextFile& f, const CaseSpec& c, const RunResult& r);
 // budget.csv: one row per hour and pollutant, every budget line in g/h over the footprint, the
 // masses at the end of the hour in g and the cumulative closure in g.
 void write_budget_csv(TextFile& f, const CaseSpec& c, const RunResult& r);
+// budget.csv, and budget.nc with `netcdf`, written hour by hour while the run steps (hour() is
+// the run's HourObserver, RunStreaming in run.hpp), so that the run need not keep its budget.
+class BudgetStream {
+ public:
+  BudgetStream(OutputFolder& folder, const CaseSpec& c, bool netcdf,
+               CfFileFormat format = CfFileFormat::netcdf4_classic);
+  ~BudgetStream();
+  BudgetStream(const BudgetStream&) = delete;
+  BudgetStream& operator=(const BudgetStream&) = delete;
+  void hour(const RunResult& r, std::size_t i);
+  // After the last hour: completes the files.
+  void close();
+
+ private:
+  static constexpr std::size_t kBlockHours = 4096;  // NetCDF values are put in blocks of hours
+  OutputFolder& folder_;
+  const CaseSpec& c_;
+  bool netcdf_;
+  CfFileFormat format_;
+  std::unique_ptr<TextFile> csv_;
+  std::unique_ptr<CfStreamWriter> nc_;
+  std::vector<double> closure_;  // [p] after the latest hour
+  std::size_t per_hour_ = 0;     // NetCDF values per hour
+  std::vector<double> row_;      // one hour's NetCDF values
+  std::vector<double> block_;    // [variable * kBlockHours + hour in the block]
+  std::size_t block_first_ = 0;
+};
+
 // The short text summary (also printed by the command line), with the standards' verdicts when
 // the case names rule sets.
 std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunResult& r,
@@ -37,5 +68,24 @@ std::string render_chart_svg(const CaseSpec& c, const RunResult& r);
 std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
                               const RunResult& r, const StandardsReport* standards, bool netcdf,
                               CfFileFormat format = CfFileFormat::netcdf4_classic);
+
+struct RunWriteOptions {
+  bool netcdf = false;
+  CfFileFormat format = CfFileFormat::netcdf4_classic;
+  std::optional<UtcSeconds> issue_time;  // overrides the case's [standards] issue_time
+  ProgressFn progress;
+  std::function<void()> after_run;  // called when the stepping is done (progress, timing)
+};
+
+struct RunWritten {
+  RunResult result;  // with its budget streamed (RunResult::budget_streamed)
+  std::optional<StandardsReport> standards;
+  std::string summary;
+};
+
+// A whole run into `folder` (published by the caller): the budget streamed to its files while
+// the box steps, then the standards and every other file.
+RunWritten run_and_write(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
+                         const RunWriteOptions& options);
 
 }  // namespace lidbox
