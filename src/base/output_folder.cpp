@@ -76,9 +76,14 @@ std::size_t output_rank(const std::string& n) {
   return order.size();
 }
 
-// Names that lidbox's run writes (for folders published before the current publishing).
-bool lidbox_output_name(const std::string& n) {
-  return output_rank(n) < run_output_order().size();
+// A folder that a lidbox run wrote: its summary.txt starts with "lidbox " (render_summary).
+bool lidbox_run_folder(const fs::path& dir) {
+  std::FILE* f = std::fopen((dir / "summary.txt").c_str(), "rb");
+  if (!f) return false;
+  char head[7] = {};
+  const std::size_t got = std::fread(head, 1, sizeof head, f);
+  std::fclose(f);
+  return got == sizeof head && std::string_view(head, sizeof head) == "lidbox ";
 }
 
 void sync_path(const fs::path& p, int flags) {
@@ -116,6 +121,8 @@ OutputFolder::OutputFolder(fs::path target) : target_(std::move(target)) {
     if (!fs::is_directory(target_, ec)) {
       throw InputError(target_.string(), "is a file", "a folder for the run's outputs");
     }
+    const bool ours = lidbox_run_folder(target_);
+    std::vector<std::string> foreign;
     for (const auto& e : fs::directory_iterator(target_, ec)) {
       const std::string n = e.path().filename().string();
       // Per-file temporaries of earlier versions, left by a crash.
@@ -126,11 +133,14 @@ OutputFolder::OutputFolder(fs::path target) : target_(std::move(target)) {
           continue;
         }
       }
-      if (!lidbox_output_name(n)) {
-        throw InputError(target_.string(), "holds \"" + n + "\", which a lidbox run does not write",
-                         "a new or empty folder, or one an earlier run wrote (a run replaces "
-                         "the whole folder)");
-      }
+      if (output_rank(n) == run_output_order().size()) foreign.push_back(n);
+    }
+    std::sort(foreign.begin(), foreign.end());
+    if (!ours && !foreign.empty()) {
+      throw InputError(target_.string(),
+                       "holds \"" + foreign.front() + "\", which a lidbox run does not write",
+                       "a new or empty folder, or one an earlier run wrote (a run replaces "
+                       "the whole folder)");
     }
   }
   stage_ = parent / (prefix + std::to_string(::getpid()));

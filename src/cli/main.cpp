@@ -7,11 +7,13 @@
 #include <cstdlib>
 #include <iostream>
 
+#include "evaluate_command.hpp"
 #include "lidbox/base/caution.hpp"
 #include "lidbox/base/error.hpp"
 #include "lidbox/base/output_folder.hpp"
 #include "metdump_command.hpp"
 #include "observe_command.hpp"
+#include "outlook_command.hpp"
 #include "run_command.hpp"
 
 int main(int argc, char** argv) {
@@ -33,6 +35,8 @@ int main(int argc, char** argv) {
   lidbox::cli::add_run_command(app, exit_code);
   lidbox::cli::add_observe_command(app, exit_code);
   lidbox::cli::add_met_dump_command(app, exit_code);
+  lidbox::cli::add_outlook_command(app, exit_code);
+  lidbox::cli::add_evaluate_command(app, exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

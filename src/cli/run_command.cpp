@@ -5,9 +5,13 @@
 #include <memory>
 
 #include "lidbox/analysis/run_standards.hpp"
+#include "lidbox/base/atomic_file.hpp"
 #include "lidbox/base/output_folder.hpp"
+#include "lidbox/diagnostics/daily_diagnostics.hpp"
 #include "lidbox/engine/case_file.hpp"
 #include "lidbox/engine/run.hpp"
+#include "lidbox/report/diagnostics_report.hpp"
+#include "lidbox/report/ensemble_report.hpp"
 #include "lidbox/report/run_netcdf.hpp"
 #include "lidbox/report/run_report.hpp"
 #include "progress.hpp"
@@ -22,6 +26,13 @@ struct RunOptions {
   bool quiet = false;
   bool netcdf = false;
 };
+// Adds a section at the end of one of the rendered files (the summary).
+void append_section(std::vector<OutputFile>& files, const std::string& name,
+                    const std::string& text) {
+  for (auto& f : files) {
+    if (f.name == name) f.content += text;
+  }
+}
 }  // namespace
 
 void add_run_command(CLI::App& app, int& exit_code) {
@@ -40,6 +51,8 @@ void add_run_command(CLI::App& app, int& exit_code) {
   run->callback([opt, &exit_code] {
     const CaseSpec c = load_case(opt->case_file);
     const MetSeries met = read_case_met(c);
+    const DiagnosticsSetup diag =
+        load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
     // The output folder is checked and its temporary made before the run, so a bad place
     // fails at once rather than after a long run.
     OutputFolder out(opt->output_dir.empty() ? c.output_directory : opt->output_dir);
@@ -50,11 +63,23 @@ void add_run_command(CLI::App& app, int& exit_code) {
       o.issue_time = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
     o.progress = [&progress](double f, const char* stage) { progress.update(f, stage); };
     o.after_run = [&progress] { progress.finish(); };
-    const std::string summary = run_and_write(out, c, met, o).summary;
+    RunWritten w = run_and_write(out, c, met, o);
+    const DiagnosticsResult days = diagnose_met(met, c.met.reading, c.met.hour_label, c.zone, diag);
+    std::vector<OutputFile> files = {{"summary.txt", std::move(w.summary)}};
+    append_diagnostics_outputs(files, diag, days);
+    if (c.ensemble) {
+      const auto ens = forecast_ensemble(
+          c, met, w.standards ? w.standards->options.rule_sets : std::vector<RuleSet>{},
+          [&progress](double f) { progress.update(f, "ensemble"); });
+      progress.finish();
+      append_section(files, "summary.txt", render_ensemble_summary(c, ens));
+      for (auto& f : render_ensemble_outputs(c, ens)) files.push_back(std::move(f));
+    }
+    for (const auto& f : files) out.write_whole(f.name, f.content);
     const auto written = out.publish();
     if (!opt->quiet) {
-      std::cout << summary << "\nWritten:";
-      for (const auto& w : written) std::cout << ' ' << w.string();
+      std::cout << files.front().content << "\nWritten:";
+      for (const auto& p : written) std::cout << ' ' << p.string();
       std::cout << '\n';
     }
     exit_code = 0;

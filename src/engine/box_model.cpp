@@ -19,6 +19,7 @@ BudgetTerms& BudgetTerms::operator+=(const BudgetTerms& o) {
   residual_reacted += o.residual_reacted;
   residual_advected_in += o.residual_advected_in;
   residual_advected_out += o.residual_advected_out;
+  vented_aloft += o.vented_aloft;
   return *this;
 }
 
@@ -29,13 +30,13 @@ double BudgetTerms::mixed_layer_change() const {
 
 double BudgetTerms::residual_layer_change() const {
   return detrained - entrained_from_residual - residual_reacted + residual_advected_in -
-         residual_advected_out;
+         residual_advected_out - vented_aloft;
 }
 
 double BudgetTerms::magnitude() const {
   return emitted + advected_in + advected_out + reacted + deposited + entrained_from_residual +
          entrained_from_free_troposphere + detrained + residual_reacted + residual_advected_in +
-         residual_advected_out;
+         residual_advected_out + vented_aloft;
 }
 
 double BoxState::c_total(std::size_t p) const {
@@ -48,6 +49,20 @@ double BoxState::cr_total(std::size_t p) const {
   double t = 0.0;
   for (std::size_t j = 0; j < parts; ++j) t += cr(p, j);
   return t;
+}
+
+double BoxState::residual_mean_total(std::size_t p) const {
+  const double depth = residual_top_m - mixing_height_m;
+  if (!(depth > 0.0)) return 0.0;
+  double older_total = 0.0;
+  for (std::size_t j = 0; j < parts; ++j) older_total += older(p, j);
+  return (cr_total(p) * (cycle_top_m - mixing_height_m) +
+          older_total * (residual_top_m - cycle_top_m)) /
+         depth;
+}
+
+void BoxState::set_residual_top(double top_m) {
+  cycle_top_m = residual_top_m = std::max(top_m, mixing_height_m);
 }
 
 double HourResult::mean_total(std::size_t p) const {
@@ -74,10 +89,11 @@ BoxEngine::BoxEngine(const Footprint& footprint, std::vector<PollutantProcesses>
 BoxState BoxEngine::make_state(double mixing_height_m) const {
   BoxState s;
   s.mixing_height_m = std::max(mixing_height_m, options_.min_mixing_height_m);
-  s.residual_top_m = s.mixing_height_m;
+  s.cycle_top_m = s.residual_top_m = s.cycle_low_m = s.mixing_height_m;
   s.parts = parts();
   s.c_g_m3.assign(pollutants() * parts(), 0.0);
   s.cr_g_m3.assign(pollutants() * parts(), 0.0);
+  s.older_g_m3.assign(pollutants() * parts(), 0.0);
   return s;
 }
 
@@ -94,7 +110,7 @@ double BoxEngine::mixed_mass(const BoxState& s, std::size_t p) const {
 }
 
 double BoxEngine::residual_mass(const BoxState& s, std::size_t p) const {
-  return s.cr_total(p) * (s.residual_top_m - s.mixing_height_m);
+  return s.residual_mean_total(p) * (s.residual_top_m - s.mixing_height_m);
 }
 
 double BoxEngine::floored_height(double h, HourResult& out) const {
@@ -129,48 +145,94 @@ void BoxEngine::move_lid(BoxState& s, double h_new, const Forcing& F, std::size_
   if (h_new == h_old) return;
   const std::size_t J = parts();
   const std::size_t P = pollutants();
+  const bool rl = options_.residual_layer;
   if (h_new > h_old) {
-    // Rising lid: entrain residual-layer air first, free-troposphere air above Hr.
+    // Rising lid: entrain the most recent cycle's air first, then older residual air, then
+    // free-troposphere air above Hr.
     const double dh = h_new - h_old;
-    const double depth = options_.residual_layer ? std::max(s.residual_top_m - h_old, 0.0) : 0.0;
-    const double from_residual = std::min(dh, depth);
-    const double from_free = dh - from_residual;
-    const bool emptied = from_residual >= depth;
+    const double from_cycle = rl ? std::min(dh, std::max(s.cycle_top_m - h_old, 0.0)) : 0.0;
+    const double from_older =
+        rl ? std::min(dh - from_cycle, std::max(s.residual_top_m - s.cycle_top_m, 0.0)) : 0.0;
+    const double from_free = dh - from_cycle - from_older;
+    const bool cycle_emptied = h_new >= s.cycle_top_m;
+    const bool older_emptied = h_new >= s.residual_top_m;
     for (std::size_t p = 0; p < P; ++p) {
       const double ca = F.free_troposphere(p, hour);
       BudgetTerms& b = out.budget[p];
       for (std::size_t j = 0; j < J; ++j) {
         const std::size_t k = p * J + j;
-        double m = s.c_g_m3[k] * h_old + s.cr_g_m3[k] * from_residual;
-        b.entrained_from_residual += s.cr_g_m3[k] * from_residual;
+        const double taken = s.cr_g_m3[k] * from_cycle + s.older_g_m3[k] * from_older;
+        double m = s.c_g_m3[k] * h_old + taken;
+        b.entrained_from_residual += taken;
         if (j == 0) {
           m += ca * from_free;
           b.entrained_from_free_troposphere += ca * from_free;
         }
         s.c_g_m3[k] = m / h_new;
-        if (emptied) s.cr_g_m3[k] = 0.0;
+        if (cycle_emptied) s.cr_g_m3[k] = 0.0;
+        if (older_emptied) s.older_g_m3[k] = 0.0;
       }
     }
     s.mixing_height_m = h_new;
+    s.cycle_top_m = std::max(s.cycle_top_m, h_new);
     s.residual_top_m = std::max(s.residual_top_m, h_new);
-  } else {
-    // Falling lid: mixed-layer air stays behind above the new lid; C does not change.
-    const double dh = h_old - h_new;
-    const double depth_old = std::max(s.residual_top_m - h_old, 0.0);
-    const double depth_new = depth_old + dh;
-    for (std::size_t p = 0; p < P; ++p) {
-      BudgetTerms& b = out.budget[p];
-      for (std::size_t j = 0; j < J; ++j) {
-        const std::size_t k = p * J + j;
-        b.detrained += s.c_g_m3[k] * dh;
-        if (options_.residual_layer) {
-          s.cr_g_m3[k] = (s.cr_g_m3[k] * depth_old + s.c_g_m3[k] * dh) / depth_new;
-        }
-      }
-    }
-    s.mixing_height_m = h_new;
-    s.residual_top_m = options_.residual_layer ? h_old + depth_old : h_new;
+    return;
   }
+  // Falling lid: mixed-layer air stays behind above the new lid; C does not change.
+  const bool cycles = rl && options_.residual_top == ResidualTop::most_recent_cycle;
+  if (cycles && h_old - s.cycle_low_m > options_.cycle_threshold_m) start_cycle(s);
+  const double dh = h_old - h_new;
+  const double depth_old = std::max(s.cycle_top_m - h_old, 0.0);
+  const double depth_new = depth_old + dh;
+  for (std::size_t p = 0; p < P; ++p) {
+    BudgetTerms& b = out.budget[p];
+    for (std::size_t j = 0; j < J; ++j) {
+      const std::size_t k = p * J + j;
+      b.detrained += s.c_g_m3[k] * dh;
+      if (rl) s.cr_g_m3[k] = (s.cr_g_m3[k] * depth_old + s.c_g_m3[k] * dh) / depth_new;
+    }
+  }
+  s.mixing_height_m = h_new;
+  s.cycle_low_m = std::min(s.cycle_low_m, h_new);
+  if (!rl) {
+    // Without a residual layer the detrained air leaves the system.
+    s.cycle_top_m = s.residual_top_m = h_new;
+    return;
+  }
+  if (cycles && s.residual_top_m > s.cycle_top_m &&
+      s.cycle_top_m - h_new > options_.cycle_threshold_m) {
+    vent_older(s, out);
+  }
+}
+
+// A new cycle begins at the present lid: all residual air above it becomes older air. One of
+// the two slabs is empty whenever this happens after a rise above the threshold (the rise took
+// back a thinner new slab, or the older air was vented), but the merge below conserves mass in
+// any case.
+void BoxEngine::start_cycle(BoxState& s) const {
+  const double d_cycle = s.cycle_top_m - s.mixing_height_m;
+  const double d_older = s.residual_top_m - s.cycle_top_m;
+  if (d_cycle > 0.0) {
+    for (std::size_t k = 0; k < s.cr_g_m3.size(); ++k) {
+      s.older_g_m3[k] = (s.older_g_m3[k] * d_older + s.cr_g_m3[k] * d_cycle) / (d_older + d_cycle);
+      s.cr_g_m3[k] = 0.0;
+    }
+  }
+  s.cycle_top_m = s.mixing_height_m;
+  s.cycle_low_m = s.mixing_height_m;
+}
+
+// The older residual air leaves to the free troposphere.
+void BoxEngine::vent_older(BoxState& s, HourResult& out) const {
+  const std::size_t J = parts();
+  const double depth = s.residual_top_m - s.cycle_top_m;
+  for (std::size_t p = 0; p < pollutants(); ++p) {
+    for (std::size_t j = 0; j < J; ++j) {
+      out.budget[p].vented_aloft += s.older(p, j) * depth;
+      s.older(p, j) = 0.0;
+    }
+  }
+  s.residual_top_m = s.cycle_top_m;
 }
 
 namespace {
@@ -202,7 +264,8 @@ void BoxEngine::exact_step(BoxState& s, double dt, double f, double fa, const Fo
   const std::size_t J = parts();
   const std::size_t P = pollutants();
   const double H = s.mixing_height_m;
-  const double D = s.residual_top_m - H;
+  const double D = s.cycle_top_m - H;                  // the most recent cycle's slab
+  const double Do = s.residual_top_m - s.cycle_top_m;  // older air
   const double inv_area = 1.0 / footprint_.area_m2();
   for (std::size_t p = 0; p < P; ++p) {
     const PollutantProcesses& pr = processes_[p];
@@ -240,7 +303,8 @@ void BoxEngine::exact_step(BoxState& s, double dt, double f, double fa, const Fo
     b.deposited += pr.deposition_velocity_m_s * integral;
 
     // Residual layer: dCr/dt = fa (Ca - Cr) - kr Cr, on its own between lid moves.
-    if (options_.residual_layer && D > 0.0) {
+    // Both slabs alike; the integral is of the depth-weighted concentration [g m-2 s].
+    if (options_.residual_layer && (D > 0.0 || Do > 0.0)) {
       const double lr = pr.residual_loss_rate_per_s + fa;
       if (lr > 0.0) {
         const Phi phr = phis(lr * dt, dt);
@@ -249,13 +313,20 @@ void BoxEngine::exact_step(BoxState& s, double dt, double f, double fa, const Fo
         for (std::size_t j = 0; j < J; ++j) {
           const std::size_t k = p * J + j;
           const double ar = j == 0 ? fa * ca : 0.0;
-          const double c0 = s.cr_g_m3[k];
-          integral_r += c0 * gr1 + ar * gr2;
-          s.cr_g_m3[k] = c0 * decay_r + ar * gr1;
+          if (D > 0.0) {
+            const double c0 = s.cr_g_m3[k];
+            integral_r += D * (c0 * gr1 + ar * gr2);
+            s.cr_g_m3[k] = c0 * decay_r + ar * gr1;
+          }
+          if (Do > 0.0) {
+            const double c0 = s.older_g_m3[k];
+            integral_r += Do * (c0 * gr1 + ar * gr2);
+            s.older_g_m3[k] = c0 * decay_r + ar * gr1;
+          }
         }
-        b.residual_reacted += pr.residual_loss_rate_per_s * D * integral_r;
-        b.residual_advected_out += fa * D * integral_r;
-        b.residual_advected_in += fa * D * ca * dt;
+        b.residual_reacted += pr.residual_loss_rate_per_s * integral_r;
+        b.residual_advected_out += fa * integral_r;
+        b.residual_advected_in += fa * (D + Do) * ca * dt;
       }
     }
   }
@@ -273,17 +344,21 @@ void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour,
   constexpr double T = 3600.0;
   const double split = F.clock_split_s > 0 ? static_cast<double>(F.clock_split_s) : T;
   const double fa_factor = options_.residual_wind_factor;
-  auto accumulate_met = [&](double dt, double h, double u, double v, double speed, double f) {
+  // h and speed are the values used (after the floors); the ventilation coefficient is u H of
+  // the met as given (h_met, u, v), so that the floors do not hide the poorest hours.
+  auto accumulate_met = [&](double dt, double h, double h_met, double u, double v, double speed,
+                            double f) {
     out.mixing_height_mean_m += h * dt / T;
     out.wind_u_mean_m_s += u * dt / T;
     out.wind_v_mean_m_s += v * dt / T;
     out.wind_speed_mean_m_s += speed * dt / T;
     out.flushing_rate_mean_per_s += f * dt / T;
-    out.ventilation_mean_m2_s += speed * h * dt / T;
+    out.ventilation_mean_m2_s += std::hypot(u, v) * h_met * dt / T;
   };
 
   if (options_.reading == MetReading::hour_average) {
-    const double h = floored_height(F.mixing_height_m[hour], out);
+    const double h_met = F.mixing_height_m[hour];
+    const double h = floored_height(h_met, out);
     move_lid(s, h, F, hour, out);
     const double u = F.wind_u_m_s[hour];
     const double v = F.wind_v_m_s[hour];
@@ -294,7 +369,7 @@ void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour,
     exact_step(s, split, f, fa, F, hour, 0, out);
     if (split < T) exact_step(s, T - split, f, fa, F, hour, 1, out);
     out.substeps = split < T ? 2 : 1;
-    accumulate_met(T, h, u, v, speed, f);
+    accumulate_met(T, h, h_met, u, v, speed, f);
   } else {
     const double h0 = F.mixing_height_m[hour], h1 = F.mixing_height_m[hour + 1];
     const double u0 = F.wind_u_m_s[hour], u1 = F.wind_u_m_s[hour + 1];
@@ -320,13 +395,17 @@ void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour,
     for (int half = 0; half < 2; ++half) {
       const double t1 = seg_end[half];
       if (t1 <= t0) continue;
-      const int m = std::max(1, static_cast<int>(std::lround(n * (t1 - t0) / T)));
+      // Rounded up, so that no sub-step is longer than the controls allow (integer arithmetic:
+      // the segment lengths are whole seconds).
+      const long seg_s = std::lround(t1 - t0);
+      const int m = static_cast<int>(std::max(1L, (static_cast<long>(n) * seg_s + 3599) / 3600));
       const double dt = (t1 - t0) / m;
       for (int k = 0; k < m; ++k) {
         const double ta = t0 + k * dt;
         const double tm = (ta + 0.5 * dt) / T;
         const double te = (ta + dt) / T;
-        const double hm = floored_height(h0 + (h1 - h0) * tm, out);
+        const double hm_met = h0 + (h1 - h0) * tm;
+        const double hm = floored_height(hm_met, out);
         const double um = u0 + (u1 - u0) * tm;
         const double vm = v0 + (v1 - v0) * tm;
         move_lid(s, hm, F, hour, out);
@@ -336,7 +415,7 @@ void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour,
         if (fa_factor > 0.0) fa = geometry_.flushing_rate(um * fa_factor, vm * fa_factor);
         exact_step(s, dt, f, fa, F, hour, half, out);
         move_lid(s, floored_height(h0 + (h1 - h0) * te, out), F, hour, out);
-        accumulate_met(dt, hm, um, vm, speed, f);
+        accumulate_met(dt, hm, hm_met, um, vm, speed, f);
         ++out.substeps;
       }
       t0 = t1;

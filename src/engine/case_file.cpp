@@ -199,19 +199,28 @@ void read_background(const TomlTable& r, PollutantSpec& p) {
   }
 }
 
-void read_initial_values(const TomlTable& r, PollutantSpec& p, SpinUp spin_up) {
+void read_initial_values(const TomlTable& r, PollutantSpec& p, const CaseSpec& c) {
   for (const char* key : {"initial", "initial_residual"}) {
     if (!r.has(key)) continue;
-    if (spin_up != SpinUp::none) {
+    if (c.spin_up != SpinUp::none) {
       throw InputError(r.where(key), "an initial value with spin_up = \"repeat_first_day\"",
                        "spin_up = \"none\" in [model] to start from given values");
     }
     const double v = *concentration_g_m3(r, key, p);
     (std::string(key) == "initial" ? p.initial_g_m3 : p.initial_residual_g_m3) = v;
   }
+  // Without a top the residual layer starts with no depth and its start value would weigh
+  // nothing: refuse rather than ignore it.
+  if (p.initial_residual_g_m3.value_or(0.0) > 0.0 && !c.initial_residual_top_m) {
+    throw InputError(r.where("initial_residual"),
+                     "an initial residual-layer concentration without a residual-layer top",
+                     "initial_residual_top = \"800 m\" (say) in [model], the top of the "
+                     "residual layer at the start, at or above the first hour's lid");
+  }
 }
 
-PollutantSpec read_pollutant(const TomlTable& pollutants, const std::string& name, SpinUp spin_up) {
+PollutantSpec read_pollutant(const TomlTable& pollutants, const std::string& name,
+                             const CaseSpec& c) {
   const TomlTable r = *pollutants.optional_table(
       name, {"unit", "molar_mass", "reference_conditions", "lifetime", "loss_rate",
              "residual_lifetime", "residual_loss_rate", "deposition_velocity", "background",
@@ -240,7 +249,7 @@ PollutantSpec read_pollutant(const TomlTable& pollutants, const std::string& nam
       r, "free_troposphere", p,
       "the concentration above the residual layer, such as free_troposphere = \"0.08 " +
           p.unit.text + "\"");
-  read_initial_values(r, p, spin_up);
+  read_initial_values(r, p, c);
   return p;
 }
 
@@ -368,14 +377,60 @@ void read_met(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
   c.engine.reading = c.met.reading;
 }
 
+// Which air the residual layer holds, and the rise and fall that make a new mixing cycle.
+void read_residual_top_rule(const TomlTable& r, CaseSpec& c) {
+  const std::string rule = r.optional_string("residual_top").value_or("most_recent_cycle");
+  if (rule == "most_recent_cycle") {
+    c.engine.residual_top = ResidualTop::most_recent_cycle;
+  } else if (rule == "highest_since_emptied") {
+    c.engine.residual_top = ResidualTop::highest_since_emptied;
+  } else {
+    throw InputError(r.where("residual_top"), "\"" + rule + "\"",
+                     "\"most_recent_cycle\" or \"highest_since_emptied\"");
+  }
+  const auto threshold = r.optional_quantity("residual_cycle_threshold", "m", "length");
+  if (!threshold) return;
+  if (!(*threshold > 0.0)) {
+    throw InputError(r.where("residual_cycle_threshold"), "a threshold <= 0 m",
+                     "a positive height (a lid that wiggles by less starts no new cycle)");
+  }
+  if (c.engine.residual_top != ResidualTop::most_recent_cycle) {
+    throw InputError(r.where("residual_cycle_threshold"),
+                     "a cycle threshold with residual_top = \"highest_since_emptied\"",
+                     "it only with residual_top = \"most_recent_cycle\"");
+  }
+  c.engine.cycle_threshold_m = *threshold;
+}
+
+// The residual layer's top at the start; whether it is at or above the first lid is checked
+// against the met by run_case.
+void read_initial_residual_top(const TomlTable& r, CaseSpec& c) {
+  const std::string key = "initial_residual_top";
+  const auto top = r.optional_quantity(key, "m", "length");
+  if (!top) return;
+  if (c.spin_up != SpinUp::none) {
+    throw InputError(r.where(key), "a residual-layer top with spin_up = \"repeat_first_day\"",
+                     "spin_up = \"none\" to start from given values");
+  }
+  if (!c.engine.residual_layer) {
+    throw InputError(r.where(key), "a residual-layer top with residual_layer = false",
+                     "residual_layer = true, or no initial_residual_top");
+  }
+  if (!(*top > 0.0)) throw InputError(r.where(key), "a top <= 0 m", "a positive height");
+  c.initial_residual_top_m = *top;
+  c.initial_residual_top_where = r.where(key);
+}
+
 void read_model(const TomlTable& top, CaseSpec& c) {
   const auto r = top.optional_table(
       "model", {"residual_layer", "residual_wind_factor", "min_wind_speed", "min_mixing_height",
                 "spin_up", "spin_up_tolerance", "spin_up_max_days", "max_lambda_dt",
-                "max_relative_lid_change", "max_substeps_per_hour"});
+                "max_relative_lid_change", "max_substeps_per_hour", "initial_residual_top",
+                "residual_top", "residual_cycle_threshold"});
   if (!r) return;
   c.engine.residual_layer = r->optional_bool("residual_layer").value_or(true);
   c.engine.residual_wind_factor = r->optional_number("residual_wind_factor").value_or(0.0);
+  read_residual_top_rule(*r, c);
   if (c.engine.residual_wind_factor < 0.0) {
     throw InputError(r->where("residual_wind_factor"), "a negative factor", "a factor >= 0");
   }
@@ -408,6 +463,7 @@ void read_model(const TomlTable& top, CaseSpec& c) {
   if (!(c.engine.max_lambda_dt > 0.0) || !(c.engine.max_relative_lid_change > 0.0)) {
     throw InputError(r->where_table(), "a sub-step control <= 0", "positive sub-step controls");
   }
+  read_initial_residual_top(*r, c);
 }
 
 void read_pollutants(const TomlTable& top, CaseSpec& c) {
@@ -415,8 +471,7 @@ void read_pollutants(const TomlTable& top, CaseSpec& c) {
   const auto names = pollutants ? pollutants->table_names_in_order() : std::vector<std::string>{};
   if (names.empty())
     top.throw_missing("pollutants", "at least one pollutant, e.g. [pollutants.CO]");
-  for (const auto& name : names)
-    c.pollutants.push_back(read_pollutant(*pollutants, name, c.spin_up));
+  for (const auto& name : names) c.pollutants.push_back(read_pollutant(*pollutants, name, c));
 }
 
 EmissionSector read_sector(const TomlTable& sectors, const std::string& name, const CaseSpec& c) {
@@ -495,6 +550,40 @@ void read_standards(const TomlTable& top, const std::string& base_dir, CaseSpec&
   c.standards = s;
 }
 
+}  // namespace
+
+const std::vector<std::string>& diagnostics_extra_fields() {
+  static const std::vector<std::string> names = {"wind_500hPa", "precipitation", "geostrophic_wind",
+                                                 "mixed_layer_wind", "transport_wind"};
+  return names;
+}
+
+namespace {
+
+void read_diagnostics(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
+  const auto r = top.optional_table("diagnostics", {"ventilation_table", "schemes", "fields"});
+  if (!r) return;
+  auto resolve = [&base_dir](std::string v) {
+    const std::filesystem::path p(v);
+    if (p.extension() == ".toml" && p.is_relative())
+      v = (std::filesystem::path(base_dir) / p).string();
+    return v;
+  };
+  if (auto t = r->optional_string("ventilation_table"))
+    c.diagnostics.ventilation_table = t->empty() ? "" : resolve(*t);
+  for (const auto& s : r->string_array("schemes")) c.diagnostics.schemes.push_back(resolve(s));
+  if (const auto f = r->optional_table("fields", diagnostics_extra_fields())) {
+    if (c.met.format != MetFormat::netcdf) {
+      throw InputError(
+          r->where("fields"), "fields for a CSV met file",
+          "fields only with NetCDF met; a CSV file names its columns after the fields");
+    }
+    for (const auto& field : diagnostics_extra_fields()) {
+      if (auto v = f->optional_string(field)) c.diagnostics.fields[field] = *v;
+    }
+  }
+}
+
 void read_output(const TomlTable& top, CaseSpec& c) {
   c.output_directory = (std::filesystem::path("outputs") / c.name).string();
   const auto r = top.optional_table("output", {"directory", "netcdf"});
@@ -503,12 +592,21 @@ void read_output(const TomlTable& top, CaseSpec& c) {
   c.netcdf_output = r->optional_bool("netcdf").value_or(false);
 }
 
+// [scenario] and [ensemble]: their readers live with their concepts.
+void read_forecast_tables(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
+  std::vector<std::string> sectors;
+  for (const auto& s : c.sectors) sectors.push_back(s.name);
+  c.scenario = read_emission_scenario(top, sectors, c.zone);
+  c.ensemble = read_ensemble_spec(top, base_dir);
+}
+
 }  // namespace
 
 CaseSpec parse_case(const std::string& text, const std::string& file, const std::string& base_dir) {
   const TomlDocument doc(text, file);
-  const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
-                            "pollutants", "sectors", "standards", "output"});
+  const TomlTable top(
+      doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model", "pollutants",
+            "sectors", "standards", "diagnostics", "output", "scenario", "ensemble"});
   CaseSpec c;
   c.file = file;
   read_top_level(top, c);
@@ -518,7 +616,9 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   read_pollutants(top, c);  // after [model]: initial values depend on the spin-up
   read_sectors(top, c);     // after [airshed] and the pollutants: area fluxes and emission keys
   read_standards(top, base_dir, c);
+  read_diagnostics(top, base_dir, c);
   read_output(top, c);
+  read_forecast_tables(top, base_dir, c);
   return c;
 }
 

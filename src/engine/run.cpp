@@ -73,6 +73,7 @@ MetSeries read_case_met(const CaseSpec& c) {
     for (const auto& p : c.pollutants) {
       if (p.background.kind == BackgroundSpec::Kind::column) o.extra[p.background.column] = p.background.column;
     }
+    for (const auto& [field, variable] : c.diagnostics.fields) o.extra[field] = variable;
     MetSeries met = read_met_netcdf(c.met.path, o);
     fill_gaps(met, c.met.max_gap_hours);
     validate_met(met);
@@ -280,8 +281,21 @@ void spin_up(const CaseSpec& c, const MetSeries& met, const Forcing& F, const Bo
   }
 }
 
-// The case's start values in the "initial" part (spin_up = "none").
-void set_initial_state(const CaseSpec& c, const Forcing& F, BoxState& state) {
+// The case's start values in the "initial" part (spin_up = "none"), and the residual layer's
+// top, which must not be below the first lid.
+void set_initial_state(const CaseSpec& c, const MetSeries& met, const Forcing& F, BoxState& state) {
+  if (c.initial_residual_top_m) {
+    const double top = *c.initial_residual_top_m;
+    if (top < state.mixing_height_m) {
+      const std::string line =
+          met.source_line.empty() ? "" : ":" + std::to_string(met.source_line[0]);
+      throw InputError(c.initial_residual_top_where,
+                       "a top of " + format_number(top) + " m, below the first lid of " +
+                           format_number(state.mixing_height_m) + " m (" + met.source + line + ")",
+                       "a residual-layer top at or above the first lid");
+    }
+    state.set_residual_top(top);
+  }
   for (std::size_t p = 0; p < F.n_pollutants; ++p) {
     const PollutantSpec& ps = c.pollutants[p];
     state.c(p, 1) = ps.initial_g_m3.value_or(F.background(p, 0));
@@ -322,7 +336,7 @@ void record_hour(std::size_t i, const BoxEngine& engine, const BoxState& state, 
   for (std::size_t p = 0; p < R.n_pollutants; ++p) {
     const std::size_t k = R.at(i, p);
     R.end_mixed_g_m3[k] = state.c_total(p);
-    R.end_residual_g_m3[k] = state.residual_top_m > state.mixing_height_m ? state.cr_total(p) : 0.0;
+    R.end_residual_g_m3[k] = state.residual_mean_total(p);
     const std::size_t kb = R.budget_at(i, p);
     const BudgetTerms& b = hr.budget[p];
     R.budget[kb] = b;
@@ -353,13 +367,15 @@ RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& pr
   if (c.spin_up == SpinUp::repeat_first_day) {
     spin_up(c, met, F, engine, state, hr, R, progress);
   } else {
-    set_initial_state(c, F, state);
+    set_initial_state(c, met, F, state);
   }
   allocate(R, n, P, R.n_parts, streaming.keep_budget);
   for (std::size_t p = 0; p < P; ++p) {
     R.initial_mixed_mass_g_m2[p] = engine.mixed_mass(state, p);
     R.initial_residual_mass_g_m2[p] = engine.residual_mass(state, p);
   }
+  // After the spin-up, which always sees the case's own emissions: a scenario changes the run.
+  if (c.scenario) apply_emission_scenario(*c.scenario, R.hours.front().start_utc, F);
   const std::size_t report_every = std::max<std::size_t>(1, n / 100);
   for (std::size_t i = 0; i < n; ++i) {
     engine.step_hour(state, F, i, hr);

@@ -26,7 +26,9 @@ std::string cf_unit(const std::string& canonical) {
   if (canonical == "ppt") return "1e-12";
   return canonical;
 }
-std::string cf_unit(const ConcentrationUnit& u) { return cf_unit(u.canonical); }
+std::string cf_unit(const ConcentrationUnit& u) {
+  return cf_unit(u.canonical);
+}
 
 std::string number(double v) {
   char buf[32];
@@ -203,6 +205,8 @@ const BudgetLine kBudgetLines[] = {
     {"residual_advected_in", &BudgetTerms::residual_advected_in, "carried into the residual layer"},
     {"residual_advected_out", &BudgetTerms::residual_advected_out,
      "carried out of the residual layer"},
+    {"vented_aloft", &BudgetTerms::vented_aloft,
+     "older residual air vented to the free troposphere when a new mixing cycle begins"},
 };
 
 }  // namespace
@@ -319,33 +323,36 @@ CfTable daily_statistics_cf_table(const CaseSpec& c, const StandardsReport& repo
 }
 
 std::vector<CfTable> running_means_cf_tables(const CaseSpec& c, const StandardsReport& report) {
-  // One table per window length, rows = windows (time = window start, bounds = the window).
+  // One table per window and minimum (rolling_8h_min6.nc), rows = windows (time = window start,
+  // bounds = the window); variables named by window and minimum too (CO_mean_8h_min6), so two
+  // requests of one length never share a name.
   std::vector<CfTable> tables;
-  std::vector<int> windows;
-  for (const auto& t : report.rolling) {
-    if (std::find(windows.begin(), windows.end(), t.means.window_h) == windows.end()) {
-      windows.push_back(t.means.window_h);
-    }
-  }
-  for (const int k : windows) {
+  for (const RollingRequest& q : report.options.rolling) {
+    const int k = q.window_h;
+    const std::string tag = q.name();
     CfTable t;
     t.period_s = static_cast<UtcSeconds>(k) * kSecondsPerHour;
-    describe_case(t, c, std::to_string(k) + "-hour running means");
+    describe_case(t, c,
+                  std::to_string(k) + "-hour running means, at least " +
+                      std::to_string(q.min_valid_h) + " hours present");
     for (const auto& rt : report.rolling) {
-      if (rt.means.window_h != k) continue;
+      if (rt.means.window_h != k || rt.means.min_valid_h != q.min_valid_h) continue;
       if (t.time_utc.empty()) {
-        for (std::size_t i = 0; i < rt.means.size(); ++i) t.time_utc.push_back(rt.means.window_start_utc(i));
+        for (std::size_t i = 0; i < rt.means.size(); ++i)
+          t.time_utc.push_back(rt.means.window_start_utc(i));
       }
       const bool ratio = rt.unit == "ppm" || rt.unit == "ppb" || rt.unit == "ppt";
       const std::string P = cf_variable_name(rt.pollutant);
-      CfVariable m = var(P + "_mean_" + std::to_string(k) + "h", pollutant_standard_name(rt.pollutant, ratio),
-                         rt.pollutant + " " + std::to_string(k) + "-hour running mean (divided by the hours present)",
-                         cf_unit(rt.unit),
-                         "time: mean (interval: 1 hour)");
-      m.comment = "window [time_bnds); missing where fewer than " + std::to_string(rt.means.min_valid_h) +
-                  " of its " + std::to_string(k) + " hours are present";
+      CfVariable m = var(P + "_mean_" + tag, pollutant_standard_name(rt.pollutant, ratio),
+                         rt.pollutant + " " + std::to_string(k) +
+                             "-hour running mean (divided by the hours present)",
+                         cf_unit(rt.unit), "time: mean (interval: 1 hour)");
+      m.comment = "window [time_bnds); missing where fewer than " +
+                  std::to_string(rt.means.min_valid_h) + " of its " + std::to_string(k) +
+                  " hours are present";
       if (ratio) m.attributes["reporting_unit"] = rt.unit;
-      CfVariable v = var(P + "_valid_hours_" + std::to_string(k) + "h", "", rt.pollutant + " hours present in the window", "1", "");
+      CfVariable v = var(P + "_valid_hours_" + std::to_string(k) + "h", "",
+                         rt.pollutant + " hours present in the window", "1", "");
       for (std::size_t i = 0; i < rt.means.size(); ++i) {
         m.values.push_back(rt.means.mean[i]);
         v.values.push_back(rt.means.valid_h[i]);
@@ -371,12 +378,12 @@ std::vector<std::pair<std::string, std::function<CfTable()>>> run_netcdf_tables(
                      [&c, standards] { return daily_statistics_cf_table(c, *standards); });
   }
   if (standards) {
-    // Rolling tables are small (one value per window); built together, handed out one by one.
+    // One table per request, in the order of the requests (running_means_cf_tables); small
+    // (one value per window), built together and handed out one by one.
     auto rolling = std::make_shared<std::vector<CfTable>>(running_means_cf_tables(c, *standards));
     for (std::size_t k = 0; k < rolling->size(); ++k) {
-      out.emplace_back(
-          "rolling_" + std::to_string((*rolling)[k].period_s / kSecondsPerHour) + "h.nc",
-          [rolling, k] { return std::move((*rolling)[k]); });
+      out.emplace_back("rolling_" + standards->options.rolling[k].name() + ".nc",
+                       [rolling, k] { return std::move((*rolling)[k]); });
     }
   }
   return out;

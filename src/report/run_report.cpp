@@ -74,7 +74,7 @@ const char* kBudgetHeader =
     "period_start_utc,pollutant,emitted [g/h],advected_in [g/h],advected_out [g/h],reacted [g/h],"
     "deposited [g/h],entrained_from_residual [g/h],entrained_from_free_troposphere [g/h],"
     "detrained [g/h],residual_reacted [g/h],residual_advected_in [g/h],"
-    "residual_advected_out [g/h],mixed_layer_mass [g],residual_layer_mass [g],"
+    "residual_advected_out [g/h],vented_aloft [g/h],mixed_layer_mass [g],residual_layer_mass [g],"
     "cumulative_closure [g]\n";
 
 // The rows of hour i, one per pollutant; closure_g_m2[p] is the cumulative closure after it.
@@ -87,7 +87,7 @@ void write_budget_rows(TextFile& f, const CaseSpec& c, const RunResult& r, std::
     for (double v : {b.emitted, b.advected_in, b.advected_out, b.reacted, b.deposited,
                      b.entrained_from_residual, b.entrained_from_free_troposphere, b.detrained,
                      b.residual_reacted, b.residual_advected_in, b.residual_advected_out,
-                     r.mixed_mass(i, p), r.residual_mass(i, p)}) {
+                     b.vented_aloft, r.mixed_mass(i, p), r.residual_mass(i, p)}) {
       f.ch(',').number(v * A, 10);
     }
     f.ch(',').scientific(closure_g_m2[p] * A, 3).ch('\n');
@@ -400,7 +400,6 @@ std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const Met
   }
   tasks.emplace_back([&] { folder.write_whole("chart.svg", render_chart_svg(c, r)); });
   tasks.emplace_back([&] {
-    folder.write_whole("summary.txt", summary);
     if (standards) {
       for (const auto& f : render_standards_report(*standards))
         folder.write_whole(f.name, f.content);

@@ -12,7 +12,6 @@
 
 namespace lidbox {
 
-
 namespace {
 
 // Ten significant digits, as printf's %.10g, through std::to_chars: printf's float path was
@@ -112,21 +111,21 @@ std::string episodes_csv(const StandardsReport& r) {
        "peak,unit,peak_start_utc,threshold,lead_time [h],legal_source,checked\n";
   for (const auto& e : r.episodes) {
     o << csv(e.rule_set_id) << ',' << csv(e.rule_id) << ',' << csv(e.level_name) << ','
-      << csv(e.pollutant) << ',' << format_utc(e.start_utc) << ','
-      << format_utc(e.end_utc) << ',' << num(e.duration_h) << ',' << e.values_above << ','
-      << num(e.peak) << ',' << csv(e.unit) << ',' << format_utc(e.peak_start_utc) << ','
-      << num(e.threshold) << ',' << (e.lead_time_h ? num(*e.lead_time_h) : "") << ','
-      << csv(e.legal_source) << ',' << csv(e.checked) << '\n';
+      << csv(e.pollutant) << ',' << format_utc(e.start_utc) << ',' << format_utc(e.end_utc) << ','
+      << num(e.duration_h) << ',' << e.values_above << ',' << num(e.peak) << ',' << csv(e.unit)
+      << ',' << format_utc(e.peak_start_utc) << ',' << num(e.threshold) << ','
+      << (e.lead_time_h ? num(*e.lead_time_h) : "") << ',' << csv(e.legal_source) << ','
+      << csv(e.checked) << '\n';
   }
   return o.str();
 }
 
-std::string rolling_csv(const StandardsReport& r, int window_h) {
+std::string rolling_csv(const StandardsReport& r, const RollingRequest& q) {
   std::ostringstream o;
   o << "pollutant,window_start_utc,window_end_utc,mean,unit,valid_hours,window_hours,"
        "min_valid_hours\n";
   for (const auto& t : r.rolling) {
-    if (t.means.window_h != window_h) continue;
+    if (t.means.window_h != q.window_h || t.means.min_valid_h != q.min_valid_h) continue;
     for (std::size_t i = 0; i < t.means.size(); ++i) {
       o << csv(t.pollutant) << ',' << format_utc(t.means.window_start_utc(i)) << ','
         << format_utc(t.means.window_end_utc(i)) << ',' << num(t.means.mean[i]) << ','
@@ -180,7 +179,7 @@ std::vector<std::string> base_table_names(const StandardsReport& r) {
   if (r.options.with_aqi) names.emplace_back("aqi.csv");
   if (r.options.with_aqhi) names.emplace_back("aqhi.csv");
   for (const auto& q : r.options.rolling) {
-    const std::string n = "rolling_" + std::to_string(q.window_h) + "h.csv";
+    const std::string n = "rolling_" + q.name() + ".csv";
     if (std::find(names.begin(), names.end(), n) == names.end()) names.push_back(n);
   }
   return names;
@@ -250,10 +249,9 @@ void json_episodes(std::ostringstream& o, const StandardsReport& r) {
       << ", \"rule_id\": " << js(e.rule_id) << ", \"level_name\": " << js(e.level_name)
       << ", \"pollutant\": " << js(e.pollutant)
       << ", \"start_utc\": " << js(format_utc(e.start_utc))
-      << ", \"end_utc\": " << js(format_utc(e.end_utc))
-      << ", \"duration_h\": " << jn(e.duration_h) << ", \"values_above\": " << e.values_above
-      << ", \"peak\": " << jn(e.peak) << ", \"unit\": " << js(e.unit)
-      << ", \"threshold\": " << jn(e.threshold)
+      << ", \"end_utc\": " << js(format_utc(e.end_utc)) << ", \"duration_h\": " << jn(e.duration_h)
+      << ", \"values_above\": " << e.values_above << ", \"peak\": " << jn(e.peak)
+      << ", \"unit\": " << js(e.unit) << ", \"threshold\": " << jn(e.threshold)
       << ", \"lead_time_h\": " << (e.lead_time_h ? jn(*e.lead_time_h) : "null")
       << ", \"legal_source\": " << js(e.legal_source) << "}";
   }
@@ -262,38 +260,38 @@ void json_episodes(std::ostringstream& o, const StandardsReport& r) {
 
 void json_aqi(std::ostringstream& o, const StandardsReport& r) {
   const auto& opt = r.options;
-    o << "  \"aqi\": {\"table\": " << js(aqi_table_name(opt.aqi_table)) << ", \"days\": [";
-    for (std::size_t i = 0; i < r.aqi.size(); ++i) {
-      const auto& d = r.aqi[i];
-      o << (i ? ",\n" : "\n") << "    {\"date_lst\": " << js(format_day(d.day))
-        << ", \"aqi\": " << d.aqi << ", \"category\": " << js(d.category)
-        << ", \"responsible\": " << js(d.responsible) << "}";
-    }
-    o << "\n  ]},\n";
+  o << "  \"aqi\": {\"table\": " << js(aqi_table_name(opt.aqi_table)) << ", \"days\": [";
+  for (std::size_t i = 0; i < r.aqi.size(); ++i) {
+    const auto& d = r.aqi[i];
+    o << (i ? ",\n" : "\n") << "    {\"date_lst\": " << js(format_day(d.day))
+      << ", \"aqi\": " << d.aqi << ", \"category\": " << js(d.category)
+      << ", \"responsible\": " << js(d.responsible) << "}";
   }
+  o << "\n  ]},\n";
+}
 
 void json_aqhi(std::ostringstream& o, const StandardsReport& r) {
-    std::map<std::string, int> counts;
-    const AqhiHour* worst = nullptr;
-    for (const auto& h : r.aqhi) {
-      ++counts[h.category];
-      if (!worst || h.value > worst->value) worst = &h;
-    }
-    o << "  \"aqhi\": {\"hours\": " << r.aqhi.size() << ", \"hours_by_category\": {";
-    bool first = true;
-    for (const auto& [k, n] : counts) {
-      o << (first ? "" : ", ") << js(k) << ": " << n;
-      first = false;
-    }
-    o << "}, \"highest\": ";
-    if (worst) {
-      o << "{\"window_end_utc\": " << js(format_utc(worst->end_utc))
-        << ", \"aqhi\": " << worst->rounded << ", \"category\": " << js(worst->category) << "}";
-    } else {
-      o << "null";
-    }
-    o << ", \"table\": \"aqhi.csv\"},\n";
+  std::map<std::string, int> counts;
+  const AqhiHour* worst = nullptr;
+  for (const auto& h : r.aqhi) {
+    ++counts[h.category];
+    if (!worst || h.value > worst->value) worst = &h;
   }
+  o << "  \"aqhi\": {\"hours\": " << r.aqhi.size() << ", \"hours_by_category\": {";
+  bool first = true;
+  for (const auto& [k, n] : counts) {
+    o << (first ? "" : ", ") << js(k) << ": " << n;
+    first = false;
+  }
+  o << "}, \"highest\": ";
+  if (worst) {
+    o << "{\"window_end_utc\": " << js(format_utc(worst->end_utc))
+      << ", \"aqhi\": " << worst->rounded << ", \"category\": " << js(worst->category) << "}";
+  } else {
+    o << "null";
+  }
+  o << ", \"table\": \"aqhi.csv\"},\n";
+}
 
 }  // namespace
 
@@ -349,8 +347,8 @@ void md_header(std::ostringstream& o, const StandardsReport& r) {
   o << "# Air-quality statistics against standards (screening estimate)\n\n";
   o << "> **Caution.** " << kScreeningCaution << "\n\n";
   o << "- Input: " << md(opt.input_label) << "\n";
-  o << "- Local standard time for days, months and years: UTC" << format_utc_offset(opt.lst_offset_s)
-    << " (no daylight saving)\n";
+  o << "- Local standard time for days, months and years: UTC"
+    << format_utc_offset(opt.lst_offset_s) << " (no daylight saving)\n";
   if (opt.issue_time_utc) o << "- Issue time: " << format_utc(*opt.issue_time_utc) << "\n";
   o << "- Generated by lidbox " << LIDBOX_VERSION << "; tables: ";
   const auto names = table_names(r);
@@ -359,8 +357,7 @@ void md_header(std::ostringstream& o, const StandardsReport& r) {
        "|---|---|---|---:|---:|\n";
   for (const auto& s : r.series) {
     o << "| " << md(s.pollutant) << " | " << md(s.unit) << " | "
-      << format_utc(s.first_hour_start_utc) << " | " << s.hours << " | " << s.valid_hours
-      << " |\n";
+      << format_utc(s.first_hour_start_utc) << " | " << s.hours << " | " << s.valid_hours << " |\n";
   }
 }
 
@@ -411,47 +408,47 @@ void md_episodes(std::ostringstream& o, const StandardsReport& r) {
          "Lead time [h] |\n|---|---|---|---|---|---|---:|---:|---:|\n";
     for (const auto& e : r.episodes) {
       o << "| " << md(e.rule_set_id) << " | " << md(e.rule_id) << " | " << md(e.level_name) << " | "
-        << md(e.pollutant) << " | " << format_utc(e.start_utc) << " | "
-        << format_utc(e.end_utc) << " | " << mdn(e.duration_h) << " | " << mdn(e.peak)
-        << " " << md(e.unit) << " | " << (e.lead_time_h ? mdn(*e.lead_time_h) : "–") << " |\n";
+        << md(e.pollutant) << " | " << format_utc(e.start_utc) << " | " << format_utc(e.end_utc)
+        << " | " << mdn(e.duration_h) << " | " << mdn(e.peak) << " " << md(e.unit) << " | "
+        << (e.lead_time_h ? mdn(*e.lead_time_h) : "–") << " |\n";
     }
   }
 }
 
 void md_aqi(std::ostringstream& o, const StandardsReport& r) {
   const auto& opt = r.options;
-    o << "\n## US Air Quality Index (breakpoints: " << aqi_table_name(opt.aqi_table) << ")\n\n";
-    if (r.aqi.empty()) {
-      o << "No day with a complete AQI input.\n";
-    } else {
-      std::map<int, std::pair<std::string, int>> by_rank;
-      const DailyAqi* worst = &r.aqi.front();
-      for (const auto& d : r.aqi) {
-        const int rank = d.category == "Beyond the AQI" ? 501 : d.aqi <= 50 ? 0 : (d.aqi - 1) / 50;
-        auto& slot = by_rank[rank];
-        slot.first = d.category;
-        ++slot.second;
-        if (d.aqi > worst->aqi) worst = &d;
-      }
-      o << "| Category | Days |\n|---|---:|\n";
-      for (const auto& [rank, c] : by_rank) o << "| " << c.first << " | " << c.second << " |\n";
-      o << "\nHighest: AQI " << worst->aqi << " (" << worst->category << ") on "
-        << format_day(worst->day) << ", responsible pollutant " << worst->responsible << ".\n";
+  o << "\n## US Air Quality Index (breakpoints: " << aqi_table_name(opt.aqi_table) << ")\n\n";
+  if (r.aqi.empty()) {
+    o << "No day with a complete AQI input.\n";
+  } else {
+    std::map<int, std::pair<std::string, int>> by_rank;
+    const DailyAqi* worst = &r.aqi.front();
+    for (const auto& d : r.aqi) {
+      const int rank = d.category == "Beyond the AQI" ? 501 : d.aqi <= 50 ? 0 : (d.aqi - 1) / 50;
+      auto& slot = by_rank[rank];
+      slot.first = d.category;
+      ++slot.second;
+      if (d.aqi > worst->aqi) worst = &d;
     }
+    o << "| Category | Days |\n|---|---:|\n";
+    for (const auto& [rank, c] : by_rank) o << "| " << c.first << " | " << c.second << " |\n";
+    o << "\nHighest: AQI " << worst->aqi << " (" << worst->category << ") on "
+      << format_day(worst->day) << ", responsible pollutant " << worst->responsible << ".\n";
   }
+}
 
 void md_aqhi(std::ostringstream& o, const StandardsReport& r) {
-    o << "\n## Canada AQHI (hourly, from 3-hour means)\n\n";
-    if (r.aqhi.empty()) {
-      o << "Not computed: NO2, O3 and PM2.5 are all needed.\n";
-    } else {
-      const auto worst =
-          std::max_element(r.aqhi.begin(), r.aqhi.end(),
-                           [](const auto& a, const auto& b) { return a.value < b.value; });
-      o << r.aqhi.size() << " hours; highest AQHI " << worst->rounded << " (" << worst->category
-        << ") for the 3 hours ending " << format_utc(worst->end_utc) << ".\n";
-    }
+  o << "\n## Canada AQHI (hourly, from 3-hour means)\n\n";
+  if (r.aqhi.empty()) {
+    o << "Not computed: NO2, O3 and PM2.5 are all needed.\n";
+  } else {
+    const auto worst =
+        std::max_element(r.aqhi.begin(), r.aqhi.end(),
+                         [](const auto& a, const auto& b) { return a.value < b.value; });
+    o << r.aqhi.size() << " hours; highest AQHI " << worst->rounded << " (" << worst->category
+      << ") for the 3 hours ending " << format_utc(worst->end_utc) << ".\n";
   }
+}
 
 }  // namespace
 
@@ -483,10 +480,11 @@ std::vector<OutputFile> render_standards_report(const StandardsReport& r) {
   files.push_back({"episodes.csv", episodes_csv(r)});
   if (r.options.with_aqi) files.push_back({"aqi.csv", aqi_csv(r)});
   if (r.options.with_aqhi) files.push_back({"aqhi.csv", aqhi_csv(r)});
-  for (const auto& name : base_table_names(r)) {
-    if (name.rfind("rolling_", 0) != 0) continue;
-    const int k = std::stoi(name.substr(8));
-    files.push_back({name, rolling_csv(r, k)});
+  for (const auto& q : r.options.rolling) {
+    const std::string name = "rolling_" + q.name() + ".csv";
+    const bool seen = std::any_of(files.begin(), files.end(),
+                                  [&](const OutputFile& f) { return f.name == name; });
+    if (!seen) files.push_back({name, rolling_csv(r, q)});
   }
   files.push_back({"report.md", report_markdown(r)});
   files.push_back({"report.json", report_json(r)});

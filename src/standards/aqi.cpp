@@ -3,8 +3,8 @@
 #include <cmath>
 #include <map>
 
-#include "lidbox/standards/averaging.hpp"
 #include "lidbox/base/error.hpp"
+#include "lidbox/standards/averaging.hpp"
 
 namespace lidbox {
 
@@ -147,12 +147,30 @@ const char* aqi_category(int aqi) {
   return "Beyond the AQI";
 }
 
+namespace {
+
+// The conservative reading of the 1-h SO2 footnote for a 1-h value above the 1-h scale (see
+// aqi.hpp): the sub-index is held at the top of the 1-h scale, AQI 200; the 24-h mean, added
+// separately, decides any higher value.
+std::optional<SubIndex> so2_1h_above_scale(double ppb, AqiTable table) {
+  const auto rows = aqi_breakpoints(AqiInput::so2_1h, table);
+  const double c =
+      apply_rounding(ppb, {RoundingMode::truncate, truncation_decimals(AqiInput::so2_1h)});
+  if (rows.empty() || std::isnan(c) || !(c > rows.back().bp_hi)) return std::nullopt;
+  SubIndex s{AqiInput::so2_1h, c, rows.back().i_hi, false};
+  s.held_at_scale_top = true;
+  return s;
+}
+
+}  // namespace
+
 std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, AqiTable table) {
   std::map<std::int64_t, DailyAqi> days;
   auto add = [&](const DailyValues& dv, double factor, AqiInput input) {
     for (std::size_t d = 0; d < dv.size(); ++d) {
       if (!dv.complete(d)) continue;
-      const auto sub = aqi_sub_index(input, dv.value[d] * factor, table);
+      auto sub = aqi_sub_index(input, dv.value[d] * factor, table);
+      if (!sub && input == AqiInput::so2_1h) sub = so2_1h_above_scale(dv.value[d] * factor, table);
       if (!sub) continue;
       DailyAqi& day = days[dv.day(d)];
       day.day = dv.day(d);
@@ -167,7 +185,8 @@ std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, Aqi
   auto has = [&](const char* p) { return series.count(p) && series.at(p).size() > 0; };
   if (has("O3")) {
     const HourlySeries& s = series.at("O3");
-    add(daily_max_of_windows(running_means(s, 8, 6), lst_offset_s, kUsOzoneDayWindows),
+    add(daily_max_of_windows(running_means(s, 8, 6, WindowSpan::reaching_into_series), lst_offset_s,
+                             kUsOzoneDayWindows),
         factor_for("O3", AqiInput::o3_8h), AqiInput::o3_8h);
     add(daily_max_1h(s, lst_offset_s), factor_for("O3", AqiInput::o3_1h), AqiInput::o3_1h);
   }
@@ -180,7 +199,8 @@ std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, Aqi
         AqiInput::pm10_24h);
   }
   if (has("CO")) {
-    add(daily_max_of_windows(running_means(series.at("CO"), 8, 6), lst_offset_s, {0, 24, 18}),
+    add(daily_max_of_windows(running_means(series.at("CO"), 8, 6, WindowSpan::reaching_into_series),
+                             lst_offset_s, {0, 24, 18}),
         factor_for("CO", AqiInput::co_8h), AqiInput::co_8h);
   }
   if (has("SO2")) {

@@ -52,39 +52,46 @@ std::string to_string(Rounding rounding) {
   return "none";
 }
 
-RunningMeans running_means(const HourlySeries& series, int window_h, int min_valid_h) {
+RunningMeans running_means(const HourlySeries& series, int window_h, int min_valid_h,
+                           WindowSpan span) {
   if (window_h < 1) throw InputError("window_h", std::to_string(window_h), "at least 1 hour");
   if (min_valid_h < 1 || min_valid_h > window_h) {
     throw InputError("min_valid_h", std::to_string(min_valid_h),
                      "1 .. " + std::to_string(window_h) + " hours");
   }
-  const std::size_t n = series.size();
-  const auto k = static_cast<std::size_t>(window_h);
+  const auto n = static_cast<std::int64_t>(series.size());
+  const std::int64_t k = window_h;
+  const std::int64_t lead = span == WindowSpan::reaching_into_series && n > 0 ? k - 1 : 0;
   RunningMeans out;
   out.window_h = window_h;
   out.min_valid_h = min_valid_h;
-  out.first_window_start_utc = series.first_hour_start_utc;
-  out.mean.assign(n, kMissing);
-  out.valid_h.assign(n, 0);
-  // Running sum over the window [i, i + k), moved one hour at a time from the end of the series
-  // backwards so each hour enters once and leaves once.
+  out.leading_windows = static_cast<std::size_t>(lead);
+  out.first_window_start_utc = series.first_hour_start_utc - lead * kSecondsPerHour;
+  out.mean.assign(static_cast<std::size_t>(n + lead), kMissing);
+  out.valid_h.assign(static_cast<std::size_t>(n + lead), 0);
+  // Running sum over the window [s, s + k) of series hours, moved one hour at a time from the
+  // end of the series backwards so each hour enters once and leaves once; s < 0 are the windows
+  // starting before the first hour.
   double sum = 0.0;
   int count = 0;
-  for (std::size_t step = n; step-- > 0;) {
-    const double in = series.values[step];
-    if (!std::isnan(in)) {
-      sum += in;
-      ++count;
+  for (std::int64_t s = n - 1; s >= -lead; --s) {
+    if (s >= 0) {
+      const double in = series.values[static_cast<std::size_t>(s)];
+      if (!std::isnan(in)) {
+        sum += in;
+        ++count;
+      }
     }
-    if (step + k < n) {
-      const double leaving = series.values[step + k];
+    if (s + k < n) {
+      const double leaving = series.values[static_cast<std::size_t>(s + k)];
       if (!std::isnan(leaving)) {
         sum -= leaving;
         --count;
       }
     }
-    out.valid_h[step] = count;
-    if (count >= min_valid_h) out.mean[step] = sum / count;
+    const auto w = static_cast<std::size_t>(s + lead);
+    out.valid_h[w] = count;
+    if (count >= min_valid_h) out.mean[w] = sum / count;
   }
   return out;
 }
@@ -201,9 +208,10 @@ DailyValues daily_max_of_windows(const RunningMeans& means, int lst_offset_s,
     const std::int64_t shifted = local_hour(i) - rule.first_start_hour;
     return shifted - cc::floor_div(shifted, 24) * 24 < rule.window_count;
   };
-  // The day span runs from the first to the last window that belongs to some day (a US day
-  // has no window starting 00:00-06:00, so a series starting at midnight opens on that day).
-  std::size_t i0 = 0;
+  // The day span runs from the first to the last window starting inside the series that
+  // belongs to some day (a US day has no window starting 00:00-06:00, so a series starting at
+  // midnight opens on that day). Earlier windows only count toward the days of that span.
+  std::size_t i0 = std::min(means.leading_windows, means.size() - 1);
   while (i0 + 1 < means.size() && !in_a_day(i0)) ++i0;
   std::size_t i1 = means.size() - 1;
   while (i1 > i0 && !in_a_day(i1)) --i1;
@@ -219,7 +227,7 @@ DailyValues daily_max_of_windows(const RunningMeans& means, int lst_offset_s,
     const std::int64_t shifted = local_hour(i) - rule.first_start_hour;
     const std::int64_t day = cc::floor_div(shifted, 24);
     const std::int64_t position = shifted - day * 24;
-    if (position >= rule.window_count) continue;
+    if (position >= rule.window_count || day < first || day > last) continue;
     const auto d = static_cast<std::size_t>(day - first);
     out.value[d] = out.valid_count[d] == 0 ? v : std::max(out.value[d], v);
     ++out.valid_count[d];

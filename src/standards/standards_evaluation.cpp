@@ -57,7 +57,8 @@ struct Cache {
 
   const RunningMeans& eight_hour(const std::string& p, const HourlySeries& s) {
     auto it = running8.find(p);
-    if (it == running8.end()) it = running8.emplace(p, running_means(s, 8, 6)).first;
+    if (it == running8.end())
+      it = running8.emplace(p, running_means(s, 8, 6, WindowSpan::reaching_into_series)).first;
     return it->second;
   }
   const DailyValues& day(const std::string& p, const HourlySeries& s, StatisticKind k, int required,
@@ -324,7 +325,7 @@ std::vector<DailyStatisticsRow> daily_statistics(const NamedSeries& series, int 
   out.reserve(rows);
   for (const auto& [name, s] : series) {
     if (s.size() == 0) continue;
-    const RunningMeans rm8 = running_means(s, 8, 6);
+    const RunningMeans rm8 = running_means(s, 8, 6, WindowSpan::reaching_into_series);
     const std::pair<const char*, DailyValues> tables[] = {
         {"daily_mean", daily_means(s, lst_offset_s, 18)},
         {"daily_max_1h", daily_max_1h(s, lst_offset_s, 18)},

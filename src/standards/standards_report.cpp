@@ -11,7 +11,6 @@
 
 namespace lidbox {
 
-
 StandardsReport compute_standards_report(const NamedSeries& series, ReportOptions options) {
   StandardsReport r;
   const int off = options.lst_offset_s;
@@ -36,6 +35,11 @@ StandardsReport compute_standards_report(const NamedSeries& series, ReportOption
   }
   if (options.with_aqi) r.aqi = daily_aqi(series, off, options.aqi_table);
   if (options.with_aqhi) r.aqhi = hourly_aqhi(series);
+  std::vector<RollingRequest> unique;
+  for (const RollingRequest& q : options.rolling) {
+    if (std::find(unique.begin(), unique.end(), q) == unique.end()) unique.push_back(q);
+  }
+  options.rolling = unique;
   for (const RollingRequest& q : options.rolling) {
     for (const auto& [name, s] : series) {
       r.rolling.push_back(RollingTable{name, s.unit, running_means(s, q.window_h, q.min_valid_h)});

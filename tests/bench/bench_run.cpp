@@ -43,7 +43,8 @@ int main(int argc, char** argv) {
   const auto t2 = Clock::now();
   const auto standards = run_standards(c, r, std::nullopt);
   const auto t3 = Clock::now();
-  (void)write_run_outputs(out, c, met, r, standards ? &*standards : nullptr, netcdf);
+  out.write_whole("summary.txt",
+                  write_run_outputs(out, c, met, r, standards ? &*standards : nullptr, netcdf));
   (void)out.publish();
   const auto t4 = Clock::now();
   std::filesystem::remove_all("bench_run_out");

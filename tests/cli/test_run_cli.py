@@ -132,21 +132,51 @@ def test_netcdf_demo():
         t0 = np.datetime_as_string(ds["time"].values[0], unit="s") + "Z"
         check(t0 == rows[0]["period_start_utc"], "xarray decodes the first hour as %s (%s)" % (rows[0]["period_start_utc"], t0))
         check(ds.attrs.get("featureType") == "timeSeries", "featureType timeSeries")
-        # rolling_8h.nc against pandas rolling(8, min_periods=6) on the hourly table: pandas
+        # rolling_8h_min6.nc against pandas rolling(8, min_periods=6) on the hourly table: pandas
         # labels a window at its last row, lidbox's NetCDF at its start (time_bnds hold both).
         try:
             import pandas as pd
         except ImportError:
             print("skip: pandas not available")
             return
-        r8 = xr.open_dataset(os.path.join(d, "nc", "rolling_8h.nc"))
+        r8 = xr.open_dataset(os.path.join(d, "nc", "rolling_8h_min6.nc"))
         # The last 7 windows run past the end of the run (lidbox keeps those with 6 or 7 hours;
         # pandas has no rows there), so the comparison covers the 161 windows inside the run.
         inside = len(want) - 7
         ref = pd.Series(want).rolling(8, min_periods=6).mean().shift(-7).to_numpy()[:inside]
-        got = r8["CO_mean_8h"].values[:inside]
+        got = r8["CO_mean_8h_min6"].values[:inside]
         check(not np.isnan(ref).any() and np.max(np.abs(got - ref) / ref) < 1e-6,
-              "rolling_8h.nc equals pandas rolling(8, min_periods=6) on hourly.csv (%d windows)" % inside)
+              "rolling_8h_min6.nc equals pandas rolling(8, min_periods=6) on hourly.csv (%d windows)" % inside)
+
+
+def test_rolling_same_length():
+    """Two running means of one length with different minimums ("8" and "8:8") get their own
+    files and variables, named by window and minimum, in CSV and NetCDF (issue 13 item 5)."""
+    with tempfile.TemporaryDirectory() as d:
+        bad_case(d, ('aqi_table = "2024"', 'aqi_table = "2024"\nrolling = ["8", "8:8"]'))
+        shutil.copy(os.path.join(SOURCE, "met-demo", "cindervale-advisories.toml"), d)
+        p = run(["run", "-q", "case.toml", "-o", "out", "--netcdf"], d)
+        check(p.returncode == 0, "rolling 8 and 8:8 with --netcdf exit 0 (stderr: %s)" % p.stderr.strip())
+        out = os.path.join(d, "out")
+        for name in ("rolling_8h_min6.csv", "rolling_8h_min8.csv", "rolling_8h_min6.nc", "rolling_8h_min8.nc"):
+            check(os.path.isfile(os.path.join(out, name)), "rolling 8 and 8:8 write " + name)
+        if p.returncode != 0:
+            return
+        # Each CSV holds its own minimum only: 8:8 is the default 6 of 8 for "8" (0.75 * 8).
+        for m in (6, 8):
+            with open(os.path.join(out, "rolling_8h_min%d.csv" % m)) as f:
+                rows = list(csv.DictReader(f))
+            check(rows and all(r["min_valid_hours"] == str(m) for r in rows),
+                  "rolling_8h_min%d.csv holds only windows needing %d hours (%d rows)" % (m, m, len(rows)))
+        try:
+            import netCDF4
+        except ImportError:
+            print("skip: netCDF4 not available under", sys.executable)
+            return
+        for m in (6, 8):
+            with netCDF4.Dataset(os.path.join(out, "rolling_8h_min%d.nc" % m)) as ds:
+                check("CO_mean_8h_min%d" % m in ds.variables,
+                      "rolling_8h_min%d.nc names CO_mean_8h_min%d (has %s)" % (m, m, sorted(ds.variables)))
 
 
 def bad_case(tmp, case_edit=None, met_lines=None):
@@ -266,6 +296,7 @@ def test_usage():
 if __name__ == "__main__":
     test_demo()
     test_netcdf_demo()
+    test_rolling_same_length()
     test_bad_inputs()
     test_usage()
     print("%d failed" % len(failures))

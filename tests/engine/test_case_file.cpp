@@ -106,8 +106,8 @@ TEST_CASE("case-file mistakes are named with file, line and key") {
         "2147483647");
   CHECK(message("[airshed]", "[airshd]") ==
         "case.toml:4: (top level): unknown key \"airshd\"; expected one of name, title, invented, "
-        "time_zone, airshed, met, model, pollutants, sectors, standards, output (did you mean "
-        "\"airshed\"?)");
+        "time_zone, airshed, met, model, pollutants, sectors, standards, diagnostics, output, "
+        "scenario, ensemble (did you mean \"airshed\"?)");
 }
 
 TEST_CASE("month weights are normalised by the mean month lengths of the Gregorian cycle") {
@@ -153,4 +153,33 @@ TEST_CASE("NetCDF met options in the case file are checked against the format") 
   REQUIRE(c.met.netcdf.point.has_value());
   CHECK(c.met.netcdf.point->lon_deg == doctest::Approx(-112.0));
   CHECK(*c.met.netcdf.member == 3);
+}
+
+TEST_CASE("the residual layer's rule and cycle threshold are read from [model]") {
+  auto with_model = [](const std::string& model) {
+    std::string text = kCase;
+    text.replace(text.find("[pollutants.NO2]"), 16, "[model]\n" + model + "\n[pollutants.NO2]");
+    return text;
+  };
+  const CaseSpec d = parse_case(kCase, "case.toml", ".");
+  CHECK(d.engine.residual_top == ResidualTop::most_recent_cycle);
+  CHECK(d.engine.cycle_threshold_m == 100.0);
+  const CaseSpec c =
+      parse_case(with_model("residual_cycle_threshold = \"0.2 km\""), "case.toml", ".");
+  CHECK(c.engine.cycle_threshold_m == doctest::Approx(200.0));
+  const CaseSpec o =
+      parse_case(with_model("residual_top = \"highest_since_emptied\""), "case.toml", ".");
+  CHECK(o.engine.residual_top == ResidualTop::highest_since_emptied);
+  CHECK_THROWS_WITH_AS(
+      (void)parse_case(with_model("residual_top = \"yesterday\""), "case.toml", "."),
+      "case.toml:11: [model] residual_top: \"yesterday\"; expected "
+      "\"most_recent_cycle\" or \"highest_since_emptied\"",
+      InputError);
+  CHECK_THROWS_WITH_AS(
+      (void)parse_case(with_model("residual_top = \"highest_since_emptied\"\n"
+                                  "residual_cycle_threshold = \"50 m\""),
+                       "case.toml", "."),
+      "case.toml:12: [model] residual_cycle_threshold: a cycle threshold with residual_top = "
+      "\"highest_since_emptied\"; expected it only with residual_top = \"most_recent_cycle\"",
+      InputError);
 }

@@ -73,7 +73,7 @@ with tempfile.TemporaryDirectory() as tmp:
 
     series = pd.Series(values)
     for k, m in WINDOWS:
-        with open(os.path.join(out, "ref_rolling_%dh.csv" % k)) as f:
+        with open(os.path.join(out, "ref_rolling_%dh_min%d.csv" % (k, m))) as f:
             rows = list(csv.DictReader(f))
         lid = np.array([float(r["mean"]) if r["mean"] else np.nan for r in rows])
         starts = pd.to_datetime([r["window_start_utc"] for r in rows])

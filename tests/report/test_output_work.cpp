@@ -62,6 +62,7 @@ std::uint64_t output_work(std::size_t hours) {
     OutputFolder folder(std::filesystem::path(dir) / "out");
     const RunWritten w = run_and_write(folder, c, met, o);
     REQUIRE(w.standards);
+    folder.write_whole("summary.txt", w.summary);
     (void)folder.publish();
   }
   const std::uint64_t w = work_meter::total();

@@ -81,7 +81,7 @@ TEST_CASE("the SO2 alert episode appears with its lead time in every output") {
   // February 2025 in CET: the series covers 3 Feb 01:00 .. 5 Feb 01:00 LST, 48 of 672 hours.
   CHECK(find("periods.csv").find("NO2,month,2025,2,2025-02-01,2025-02-28,20,ppb,48,672,false") !=
         std::string::npos);
-  CHECK(find("rolling_8h.csv")
+  CHECK(find("rolling_8h_min6.csv")
             .find("SO2,2025-02-03T03:00:00Z,2025-02-03T11:00:00Z,162.5,ug m-3,8,8,6") !=
         std::string::npos);  // (7 * 100 + 600) / 8 = 162.5, closed form
 }

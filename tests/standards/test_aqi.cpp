@@ -1,5 +1,6 @@
 #include <doctest/doctest.h>
 
+#include <algorithm>
 #include <cmath>
 
 #include "base/civil_calendar.hpp"
@@ -161,4 +162,41 @@ TEST_CASE("the daily AQI names the responsible pollutant") {
   CHECK(days[0].responsible == "PM2.5 24-h");
   CHECK(days[0].category == "Unhealthy for Sensitive Groups");
   CHECK(days[0].sub_indices.size() == 2);
+}
+
+TEST_CASE("a day with a 350 ppb SO2 hour and a low 24-hour mean is not Good") {
+  // 40 CFR 58 App. G Table 2 (74 FR 30469) and the TAD footnote as reproduced under PMC 9133359
+  // Table 2: "1-hour SO2 values do not define higher AQI values (>= 200). AQI values of 200 or
+  // greater are calculated with 24-h SO2 concentrations." The case 1-h > 304 ppb with 24-h
+  // < 305 ppb is not settled by that text; lidbox holds the 1-h sub-index at the top of its
+  // scale, 200 (row 186-304 ppb -> 151-200), the most conservative reading it supports.
+  // Invented day (UTC = LST): SO2 10 ppb with one hour at 350 ppb, 24-h mean
+  // (23 * 10 + 350) / 24 = 24.2 ppb; PM2.5 5 ug/m3 (50 / 9.0 * 5 = 27.8 -> 28, "Good", 2024
+  // table), which is all the day showed before.
+  const UtcSeconds t0 = civil_calendar::days_from_ymd(2025, 8, 1) * kSecondsPerDay;
+  std::vector<double> so2(24, 10.0);
+  so2[14] = 350.0;
+  NamedSeries s;
+  s["SO2"] = HourlySeries{t0, so2, "ppb"};
+  s["PM2.5"] = HourlySeries{t0, std::vector<double>(24, 5.0), "ug m-3"};
+  const auto days = daily_aqi(s, 0, AqiTable::epa_2024);
+  REQUIRE(days.size() == 1);
+  CHECK(days[0].aqi == 200);
+  CHECK(days[0].category == "Unhealthy");
+  CHECK(days[0].responsible == "SO2 1-h");
+  const auto held = std::find_if(days[0].sub_indices.begin(), days[0].sub_indices.end(),
+                                 [](const SubIndex& x) { return x.input == AqiInput::so2_1h; });
+  REQUIRE(held != days[0].sub_indices.end());
+  CHECK(held->concentration == 350.0);
+  CHECK(held->held_at_scale_top);
+
+  // 24-h mean at or above 305 ppb: the 24-h row 305-604 ppb -> 201-300 (74 FR 30469 Table 2,
+  // 0.305-0.604 ppm) decides. All hours 400 ppb: 99/299 * 95 + 201 = 232.45 -> 232 (closed form).
+  NamedSeries high;
+  high["SO2"] = HourlySeries{t0, std::vector<double>(24, 400.0), "ppb"};
+  const auto h = daily_aqi(high, 0, AqiTable::epa_2024);
+  REQUIRE(h.size() == 1);
+  CHECK(h[0].aqi == 232);
+  CHECK(h[0].responsible == "SO2 24-h");
+  CHECK(h[0].category == "Very Unhealthy");
 }

@@ -4,8 +4,8 @@
 #include <random>
 
 #include "base/civil_calendar.hpp"
-#include "lidbox/standards/averaging.hpp"
 #include "lidbox/base/error.hpp"
+#include "lidbox/standards/averaging.hpp"
 
 using namespace lidbox;
 
@@ -301,6 +301,79 @@ TEST_CASE("running means equal a direct sum over each window on random series wi
       }
       CAPTURE(trial);
       CAPTURE(i);
+      CHECK(rm.valid_h[i] == count);
+      if (count >= m) {
+        CHECK(rm.mean[i] == doctest::Approx(sum / count).epsilon(1e-12));
+      } else {
+        CHECK(std::isnan(rm.mean[i]));
+      }
+    }
+  }
+}
+
+TEST_CASE("hours before a record's first hour are missing hours like those after its last") {
+  // 48 invented hours from 00:00 (UTC = LST). EU: Directive 2008/50/EC Annex VII note (the
+  // first window of a day runs 17:00 the previous day to 01:00) and Annex VII A.2 (an 8-h value
+  // needs 75 % = 6 hours; a day 18 of 24 running means; legislation.gov.uk copy). Day one's
+  // windows start 17:00 the previous day .. 16:00; those starting 22:00 and 23:00 the previous
+  // day hold 6 and 7 hours of the record, so 2 + 17 = 19 of 24 are valid (closed form).
+  const auto rec = series(utc(2024, 6, 1), std::vector<double>(48, 10.0));
+  const auto rm = running_means(rec, 8, 6, WindowSpan::reaching_into_series);
+  CHECK(rm.leading_windows == 7);
+  CHECK(rm.window_start_utc(0) == utc(2024, 5, 31, 17));
+  CHECK(rm.valid_h[5] == 6);  // 22:00 the day before: hours 00:00-05:00 present
+  const auto eu = daily_max_of_windows(rm, 0, kEuDayWindows);
+  CHECK(eu.first_day == day_of(2024, 6, 1));
+  REQUIRE(eu.size() == 3);
+  CHECK(eu.valid_count[0] == 19);
+  CHECK(eu.complete(0));
+  // Day two: its windows all end by 24:00, inside the record: 24 of 24.
+  CHECK(eu.valid_count[1] == 24);
+  // The day after mirrors day one: of its windows starting 17:00 .. 23:00 on day two, those
+  // from 17:00 and 18:00 hold 7 and 6 hours of the record (closed form).
+  CHECK(eu.valid_count[2] == 2);
+
+  // US: 40 CFR 50 App. U, 17 windows starting 07:00 .. 23:00 (asl-associates summary), 13 of 17
+  // for a valid day (AirNow "Daily and Hourly AQI - Ozone": "75%, or 13/17"). A record starting
+  // 09:00: the windows starting 07:00 and 08:00 hold 6 and 7 of its hours, so day one has 17 of
+  // 17 (closed form). 72 hours so the windows of the last complete day stay inside the record.
+  const auto late = series(utc(2024, 6, 1, 9), std::vector<double>(72, 0.05), "ppm");
+  const auto us = daily_max_of_windows(running_means(late, 8, 6, WindowSpan::reaching_into_series),
+                                       0, kUsOzoneDayWindows);
+  CHECK(us.first_day == day_of(2024, 6, 1));
+  CHECK(us.valid_count[0] == 17);
+  CHECK(us.possible_count == 17);
+}
+
+TEST_CASE("windows reaching into the series equal a direct sum over each window") {
+  // The definition (closed form per window) with the k-1 leading windows, seeded.
+  const unsigned seed = 20261202;
+  MESSAGE("seed " << seed);
+  std::mt19937 rng(seed);
+  std::uniform_real_distribution<double> u(0.0, 1.0);
+  for (int trial = 0; trial < 20; ++trial) {
+    const auto n = static_cast<std::int64_t>(1 + rng() % 200);
+    std::vector<double> v(static_cast<std::size_t>(n));
+    for (double& x : v) x = u(rng) < 0.2 ? NA : 100.0 * u(rng);
+    const int k = 1 + static_cast<int>(rng() % 30);
+    const int m = 1 + static_cast<int>(rng() % static_cast<unsigned>(k));
+    const auto rm = running_means(series(0, v), k, m, WindowSpan::reaching_into_series);
+    REQUIRE(rm.size() == static_cast<std::size_t>(n + k - 1));
+    for (std::int64_t w = 0; w < n + k - 1; ++w) {
+      const std::int64_t start = w - (k - 1);
+      double sum = 0.0;
+      int count = 0;
+      for (std::int64_t j = std::max<std::int64_t>(0, start); j < std::min(n, start + k); ++j) {
+        const double x = v[static_cast<std::size_t>(j)];
+        if (!std::isnan(x)) {
+          sum += x;
+          ++count;
+        }
+      }
+      CAPTURE(trial);
+      CAPTURE(w);
+      const auto i = static_cast<std::size_t>(w);
+      CHECK(rm.window_start_utc(i) == start * kSecondsPerHour);
       CHECK(rm.valid_h[i] == count);
       if (count >= m) {
         CHECK(rm.mean[i] == doctest::Approx(sum / count).epsilon(1e-12));

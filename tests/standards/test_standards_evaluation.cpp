@@ -11,7 +11,8 @@ using namespace lidbox;
 
 namespace {
 
-const std::filesystem::path kRulesDir = std::filesystem::path(LIDBOX_SOURCE_DIR) / "src" / "data" / "rules";
+const std::filesystem::path kRulesDir =
+    std::filesystem::path(LIDBOX_SOURCE_DIR) / "src" / "data" / "rules";
 
 UtcSeconds utc(int y, int m, int d, int h = 0) {
   return civil_calendar::days_from_ymd(y, m, d) * kSecondsPerDay + h * kSecondsPerHour;
@@ -199,9 +200,10 @@ TEST_CASE("daily statistics carry all four daily values with their counts") {
   const auto n = std::count_if(rows.begin(), rows.end(), [](const DailyStatisticsRow& r) {
     return std::string(r.statistic) == "daily_max_8h_24_windows" && r.complete;
   });
-  // Day 1 has its 24 windows ending in it, but its first 7 start before the series: 17 valid,
-  // incomplete (< 18). Day 2 has all 24 (closed form).
-  CHECK(n == 1);
+  // Day 1 has its 24 windows ending in it; of the 7 that start before the series, those from
+  // 22:00 and 23:00 hold 6 and 7 of its hours: 19 valid, complete (>= 18). Day 2 has all 24.
+  // Day 3 holds only windows from 17:00 .. 23:00 of day 2 (closed form).
+  CHECK(n == 2);
   CHECK(rows.front().unit == "ppb");
 }
 
@@ -248,4 +250,37 @@ TEST_CASE("EU CO: a ppm series against 10 mg/m3 on the day each 8-hour window en
     if (d.day == civil_calendar::days_from_ymd(2025, 7, 2)) CHECK(d.value == doctest::Approx(9.0));
     if (d.day == civil_calendar::days_from_ymd(2025, 7, 1)) CHECK(d.value < 8.59);
   }
+}
+
+TEST_CASE("the daily table counts the first day's 8-hour windows like the last day's") {
+  // Issue 13 item 4. EU: Directive 2008/50/EC Annex VII note and A.2 (legislation.gov.uk copy):
+  // windows 17:00 the day before .. 16:00, 6 of 8 hours each, 18 of 24 per day. 48 invented
+  // hours from 00:00 UTC = LST: day one has the windows from 22:00 and 23:00 the day before
+  // (6 and 7 hours present) and the 17 from 00:00 .. 16:00, 19 of 24 (closed form).
+  NamedSeries s{{"O3", HourlySeries{utc(2024, 6, 1), std::vector<double>(48, 40.0), "ppb"}}};
+  const auto rows = daily_statistics(s, 0);
+  auto row = [&](const char* stat, std::int64_t day) {
+    const auto it = std::find_if(rows.begin(), rows.end(), [&](const DailyStatisticsRow& r) {
+      return std::string(r.statistic) == stat && r.day == day;
+    });
+    REQUIRE(it != rows.end());
+    return *it;
+  };
+  const auto day1 = civil_calendar::days_from_ymd(2024, 6, 1);
+  const auto eu = row("daily_max_8h_24_windows", day1);
+  CHECK(eu.valid_count == 19);
+  CHECK(eu.possible_count == 24);
+  CHECK(eu.complete);
+  // US: 40 CFR 50 App. U, windows starting 07:00 .. 23:00 (asl-associates summary), 13 of 17
+  // (AirNow "Daily and Hourly AQI - Ozone"). A record from 09:00: the windows from 07:00 and
+  // 08:00 hold 6 and 7 of its hours, so day one reads 17 of 17 (closed form).
+  NamedSeries late{{"O3", HourlySeries{utc(2024, 6, 1, 9), std::vector<double>(72, 40.0), "ppb"}}};
+  const auto late_rows = daily_statistics(late, 0);
+  const auto it =
+      std::find_if(late_rows.begin(), late_rows.end(), [&](const DailyStatisticsRow& r) {
+        return std::string(r.statistic) == "daily_max_8h_17_windows" && r.day == day1;
+      });
+  REQUIRE(it != late_rows.end());
+  CHECK(it->valid_count == 17);
+  CHECK(it->complete);
 }

@@ -1,10 +1,11 @@
 #!/usr/bin/env python3
 """The rooms of the library and which way includes may run.
 
-    cli -> report -> analysis -> engine | standards -> met -> base
+    cli -> report -> analysis | grid -> engine | standards | diagnostics -> met -> base
 
-A file may include headers of its own room and of rooms below it; engine and standards are
-peers and never include each other. Headers live in include/lidbox/<room>/, sources in
+A file may include headers of its own room and of rooms below it; engine, standards and
+diagnostics are peers and never include each other, nor do analysis and grid.
+Headers live in include/lidbox/<room>/, sources in
 src/<room>/, tests in tests/<room>/. Private headers of a room (src/<room>/*.hpp) follow the
 same rule. Fails with the file, the line and the offending include.
 
@@ -14,7 +15,8 @@ import os
 import re
 import sys
 
-RANK = {"base": 0, "met": 1, "engine": 2, "standards": 2, "analysis": 3, "report": 4, "cli": 5}
+RANK = {"base": 0, "met": 1, "engine": 2, "standards": 2, "diagnostics": 2, "analysis": 3, "grid": 3,
+        "report": 4, "cli": 5}
 INCLUDE = re.compile(r'^\s*#\s*include\s*[<"]([^>"]+)[>"]')
 
 
@@ -74,8 +76,8 @@ def main():
                                             "room" % (rel, line_no, m.group(1)))
                         elif RANK[target_room] >= RANK[room]:
                             problems.append("%s:%d: room %s includes \"%s\" of room %s; expected "
-                                            "only rooms below %s (cli -> report -> analysis -> "
-                                            "engine | standards -> met -> base)"
+                                            "only rooms below %s (cli -> report -> analysis | grid -> "
+                                            "engine | standards | diagnostics -> met -> base)"
                                             % (rel, line_no, room, m.group(1), target_room, room))
     for p in problems:
         print("FAIL: " + p)

@@ -10,10 +10,10 @@
 // process is gone (a crash, a kill) is removed when the next run into the same parent folder
 // starts. An error before publish() removes the temporary folder and leaves the target as it was.
 //
-// The target must be absent, empty, or a folder that lidbox published (it holds the marker file
-// ".lidbox-output"), or hold only names that lidbox writes (a folder from before the marker);
-// anything else is an InputError naming the folder and the first foreign entry, so that a
-// folder of the user's own files is never swapped away.
+// The target must be absent, empty, a folder that a lidbox run wrote (its summary.txt starts
+// with "lidbox "), or hold only names that a run writes; anything else is an InputError naming
+// the folder and the first foreign entry, so that a folder of the user's own files is never
+// swapped away.
 //
 // Numbers are formatted with std::to_chars into a large buffer that goes to the file as it
 // fills: no file's contents are held whole in memory or copied again.

@@ -1,9 +1,10 @@
 // The hourly box balance of a well-mixed urban airshed with a residual layer aloft.
 //
 // Notation (SI: g, m, s), after the physics note (shared design, sections 1-4):
-//   H   mixing height (the lid)              Hr  top of the residual layer (highest lid since the
-//   C   mixed-layer concentration [g m-3]        layer was last emptied); D = Hr - H its depth
-//   Cr  residual-layer concentration         Cb  background of the air arriving upwind
+//   H   mixing height (the lid)              Hr  top of the residual layer
+//   C   mixed-layer concentration [g m-3]    P   top of the most recent cycle's air, H <= P <= Hr
+//   Cr  residual air of the most recent      Co  older residual air, between P and Hr
+//       mixing cycle, between H and P        Cb  background of the air arriving upwind
 //   Ca  free-troposphere concentration       q   emission flux [g m-2 s-1] = E / A
 //   f   flushing rate [1/s] (footprint.hpp)  k   first-order loss [1/s]; vd dry deposition [m/s]
 //
@@ -13,6 +14,18 @@
 // free-troposphere air above Hr) and w- = max(-dH/dt, 0) leaving mixed-layer air behind in the
 // residual layer (detrainment), which changes the box's mass but not C. The residual layer loses
 // mass by first-order reaction and, optionally, by a wind aloft flushing it towards Ca.
+//
+// The residual layer holds the most recent mixing cycle (physics note section 3). A new cycle
+// begins when the lid starts to fall after it has risen more than `cycle_threshold_m` above its
+// lowest height since the previous cycle began: all residual air then above the lid becomes
+// older air (Co, P..Hr) and the falling lid's air fills the new cycle's slab (Cr, H..P). A rising
+// lid takes back Cr first, then Co, then free-troposphere air. Once the new slab is deeper than
+// the threshold, the older air is vented to the free troposphere (budget line vented_aloft), so
+// the evening air of a shallow day is never spread over the depth of a deep day before it. A lid
+// that wiggles by less than the threshold neither starts a cycle nor vents. The threshold (100 m
+// by default) is our choice, no source: above the scatter of hourly mixing heights at night,
+// below the rise of any day worth the name. ResidualTop::highest_since_emptied keeps the earlier
+// rule (one slab up to the highest lid since the layer was last emptied, never vented).
 // The textbook steady state C = Cb + q L/(u H) is the special case k = vd = w = 0
 // (Seinfeld and Pandis, Atmospheric Chemistry and Physics, box-model section; from memory).
 //
@@ -52,9 +65,14 @@ struct PollutantProcesses {
   double residual_loss_rate_per_s = 0.0;  // k in the residual layer
 };
 
+// Which air the residual layer holds (see the notes at the top of this file).
+enum class ResidualTop { most_recent_cycle, highest_since_emptied };
+
 struct EngineOptions {
   MetReading reading = MetReading::hour_average;
   bool residual_layer = true;
+  ResidualTop residual_top = ResidualTop::most_recent_cycle;
+  double cycle_threshold_m = 100.0;  // rise and fall that make a new mixing cycle
   // The wind aloft that flushes the residual layer, as a multiple of the surface wind vector;
   // 0 keeps the residual layer in place (flushed only when the lid takes it back).
   double residual_wind_factor = 0.0;
@@ -112,19 +130,30 @@ struct Forcing {
 };
 
 struct BoxState {
-  double mixing_height_m = 0.0;
-  double residual_top_m = 0.0;  // >= mixing_height_m
-  std::size_t parts = 0;        // linear parts per pollutant (BoxEngine::parts())
-  std::vector<double> c_g_m3;   // [p * parts + j], mixed layer
-  std::vector<double> cr_g_m3;  // [p * parts + j], residual layer
+  double mixing_height_m = 0.0;    // H
+  double cycle_top_m = 0.0;        // P >= H: top of the most recent cycle's residual air
+  double residual_top_m = 0.0;     // Hr >= P: top of all residual air
+  double cycle_low_m = 0.0;        // lowest lid since the most recent cycle began
+  std::size_t parts = 0;           // linear parts per pollutant (BoxEngine::parts())
+  std::vector<double> c_g_m3;      // [p * parts + j], mixed layer
+  std::vector<double> cr_g_m3;     // [p * parts + j], residual air of the most recent cycle
+  std::vector<double> older_g_m3;  // [p * parts + j], older residual air (P..Hr)
 
   [[nodiscard]] double& c(std::size_t p, std::size_t j) { return c_g_m3[p * parts + j]; }
   [[nodiscard]] double c(std::size_t p, std::size_t j) const { return c_g_m3[p * parts + j]; }
   [[nodiscard]] double& cr(std::size_t p, std::size_t j) { return cr_g_m3[p * parts + j]; }
   [[nodiscard]] double cr(std::size_t p, std::size_t j) const { return cr_g_m3[p * parts + j]; }
+  [[nodiscard]] double& older(std::size_t p, std::size_t j) { return older_g_m3[p * parts + j]; }
+  [[nodiscard]] double older(std::size_t p, std::size_t j) const {
+    return older_g_m3[p * parts + j];
+  }
   // Sum of the parts of pollutant p in the mixed and residual layers [g m-3].
   [[nodiscard]] double c_total(std::size_t p) const;
   [[nodiscard]] double cr_total(std::size_t p) const;
+  // Mean over the whole residual layer (H..Hr) of pollutant p, all parts; 0 without depth.
+  [[nodiscard]] double residual_mean_total(std::size_t p) const;
+  // Starts the run with a residual layer of the most recent cycle up to `top_m` (>= the lid).
+  void set_residual_top(double top_m);
 };
 
 // Budget lines of one pollutant over an interval [g m-2 of footprint]; the signs are in the
@@ -141,6 +170,7 @@ struct BudgetTerms {
   double residual_reacted = 0.0;
   double residual_advected_in = 0.0;
   double residual_advected_out = 0.0;
+  double vented_aloft = 0.0;  // older residual air -> free troposphere when a new cycle begins
 
   BudgetTerms& operator+=(const BudgetTerms& o);
   // Net change of the mixed layer's mass implied by the lines.
@@ -161,7 +191,7 @@ struct HourResult {
   double wind_u_mean_m_s = 0.0;
   double wind_v_mean_m_s = 0.0;
   double flushing_rate_mean_per_s = 0.0;
-  double ventilation_mean_m2_s = 0.0;  // hour mean of u H
+  double ventilation_mean_m2_s = 0.0;  // hour mean of u H of the met as given (before floors)
   bool calm_floor = false;
   bool lid_floor = false;
   int substeps = 0;
@@ -181,7 +211,7 @@ class BoxEngine {
   [[nodiscard]] const Footprint& footprint() const { return footprint_; }
 
   // A state of the right size with all concentrations zero and the lid at `mixing_height_m`
-  // (floored), with no residual layer.
+  // (floored), with no residual layer; BoxState::set_residual_top gives it one.
   [[nodiscard]] BoxState make_state(double mixing_height_m) const;
   [[nodiscard]] HourResult make_result() const;
 
@@ -195,6 +225,8 @@ class BoxEngine {
  private:
   void move_lid(BoxState& s, double new_height_m, const Forcing& F, std::size_t hour,
                 HourResult& out) const;
+  void start_cycle(BoxState& s) const;
+  void vent_older(BoxState& s, HourResult& out) const;
   void exact_step(BoxState& s, double dt_s, double flushing_per_s, double flushing_aloft_per_s,
                   const Forcing& F, std::size_t hour, int half, HourResult& out) const;
   double floored_height(double h, HourResult& out) const;

@@ -8,17 +8,20 @@
 // README.md documents each key.
 #pragma once
 
+#include <map>
 #include <optional>
 #include <string>
 #include <vector>
 
-#include "lidbox/engine/box_model.hpp"
 #include "lidbox/base/concentration_units.hpp"
+#include "lidbox/base/time.hpp"
+#include "lidbox/engine/box_model.hpp"
+#include "lidbox/engine/emission_scenario.hpp"
 #include "lidbox/engine/emissions.hpp"
+#include "lidbox/engine/ensemble_spec.hpp"
 #include "lidbox/engine/footprint.hpp"
 #include "lidbox/met/met_series.hpp"
 #include "lidbox/met/netcdf_met.hpp"
-#include "lidbox/base/time.hpp"
 
 namespace lidbox {
 
@@ -49,7 +52,7 @@ struct PollutantSpec {
   BackgroundSpec background;
   double free_troposphere_g_m3 = 0.0;
   std::optional<double> initial_g_m3;           // only without spin-up
-  std::optional<double> initial_residual_g_m3;  // only without spin-up
+  std::optional<double> initial_residual_g_m3;  // only without spin-up; > 0 needs a top
 };
 
 enum class SpinUp { none, repeat_first_day };
@@ -78,6 +81,17 @@ struct StandardsSpec {
                                                // 0 = the standards' 75 % default)
 };
 
+// What [diagnostics] names; the diagnostics room loads and applies it (daily_diagnostics.hpp).
+struct DiagnosticsSpec {
+  std::string ventilation_table = "usfs-vcis";  // id or path; "" for none
+  std::vector<std::string> schemes;             // ids or paths (resolved against the case)
+  std::map<std::string, std::string> fields;    // field -> NetCDF variable (NetCDF met only)
+};
+
+// The diagnostics fields a met file may carry beside the mixing height and wind (the names of
+// stagnation_scheme.hpp's DiagnosticField; a test checks that the two lists agree).
+const std::vector<std::string>& diagnostics_extra_fields();
+
 struct CaseSpec {
   std::string file;  // the case file as named by the user
   std::string name;
@@ -89,12 +103,20 @@ struct CaseSpec {
   SpinUp spin_up = SpinUp::repeat_first_day;
   double spin_up_tolerance = 1e-3;  // relative change of the day's hour means
   int spin_up_max_days = 60;
+  // Top of the residual layer at the start [m] (only without spin-up); it must be at or above
+  // the initial lid, which run_case checks against the met. Absent: no residual layer at the
+  // start. `initial_residual_top_where` places the key for that message.
+  std::optional<double> initial_residual_top_m;
+  std::string initial_residual_top_where;
   std::vector<PollutantSpec> pollutants;
   std::vector<EmissionSector> sectors;  // rates per pollutant in the order of `pollutants`
   std::optional<StandardsSpec> standards;  // absent: no standards tables
+  DiagnosticsSpec diagnostics;
   std::string output_directory;         // default outputs/<name>
   bool netcdf_output = false;           // also write hourly.nc, budget.nc, daily.nc
   bool invented = false;                // the case says its scenario is invented
+  std::optional<EmissionScenario> scenario;  // [scenario]: sectors scaled from a start time
+  std::optional<EnsembleSpec> ensemble;      // [ensemble]: met members run beside [met]
 };
 
 // Reads and checks a case file. Relative paths inside it are resolved against its folder.

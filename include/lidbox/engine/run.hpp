@@ -21,7 +21,7 @@ struct HourRecord {
   double mixing_height_m = 0.0;
   double wind_speed_m_s = 0.0;
   double wind_from_deg = 0.0;  // direction of the mean wind vector
-  double ventilation_m2_s = 0.0;
+  double ventilation_m2_s = 0.0;  // hour mean of u H of the met as given (before floors)
   double flushing_time_h = 0.0;  // 1 / f of the hour-mean flushing rate
   double residual_top_m = 0.0;   // end of hour
   bool filled = false;           // the met of this hour came from the gap rule

@@ -49,9 +49,10 @@ void budget_hour_values(const CaseSpec& c, const RunResult& r, std::size_t hour,
 // InternalError when the report has no daily rows.
 CfTable daily_statistics_cf_table(const CaseSpec& c, const StandardsReport& report);
 
-// The running means the case asked for ([standards] rolling), one table per window length k:
-// rows are the windows (time = window start, time_bnds = the window), per pollutant P
-// P_mean_<k>h and P_valid_hours_<k>h.
+// The running means the case asked for ([standards] rolling), one table per request (window
+// length k, at least m hours present), in the order of report.options.rolling: rows are the
+// windows (time = window start, time_bnds = the window), per pollutant P P_mean_<k>h_min<m>
+// and P_valid_hours_<k>h. Written as rolling_<k>h_min<m>.nc.
 std::vector<CfTable> running_means_cf_tables(const CaseSpec& c, const StandardsReport& report);
 
 // {"hourly.nc", "budget.nc"} (budget.nc only when the run kept its budget), with a report that has

@@ -60,11 +60,11 @@ std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunRes
 // chart.svg: mixing height and wind, then each pollutant's hour means stacked by part.
 std::string render_chart_svg(const CaseSpec& c, const RunResult& r);
 
-// Every file of a run into `folder` (published by the caller): hourly.csv, budget.csv,
-// summary.txt, chart.svg, then the standards tables and reports (limits.csv, daily.csv,
+// Every file of a run into `folder` (published by the caller) except summary.txt, whose text is
+// returned for the caller to complete and write: hourly.csv, budget.csv (unless the run streamed
+// it), chart.svg, then the standards tables and reports (limits.csv, daily.csv,
 // periods.csv, aqi.csv, aqhi.csv, episodes.csv, report.md, report.json) when given, and the
 // NetCDF files (run_netcdf.hpp) with `netcdf`. Independent files are written on two threads.
-// Returns the summary's text.
 std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
                               const RunResult& r, const StandardsReport* standards, bool netcdf,
                               CfFileFormat format = CfFileFormat::netcdf4_classic);
@@ -84,7 +84,7 @@ struct RunWritten {
 };
 
 // A whole run into `folder` (published by the caller): the budget streamed to its files while
-// the box steps, then the standards and every other file.
+// the box steps, then the standards and every other file but summary.txt (write_run_outputs).
 RunWritten run_and_write(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
                          const RunWriteOptions& options);
 

@@ -18,8 +18,18 @@
 //       (WAC 296-307-09860 App. B, citing the TAD of September 2018).
 // O3 8-h rows 0.000-0.054 ... 0.106-0.200 ppm; 8-h O3 does not define AQI >= 301 (use 1-h O3,
 // 0.125-0.604 ppm, rows from 101). 1-h SO2 does not define AQI >= 200: 24-h SO2 rows 305-1004
-// ppb do (74 FR 30469 footnotes; the same footnotes under PMC 9133359 Table 2). PM10, CO, NO2
-// rows: design/references.md 2.2, from memory, matching secondary copies of the TAD.
+// ppb do (74 FR 30469 footnotes; the same footnotes under PMC 9133359 Table 2: "1-hour SO2
+// values do not define higher AQI values (>= 200). AQI values of 200 or greater are calculated
+// with 24-h SO2 concentrations"). PM10, CO, NO2 rows: design/references.md 2.2, from memory,
+// matching secondary copies of the TAD.
+//
+// A day whose 1-h SO2 maximum is above 304 ppb while its 24-h mean is below 305 ppb: the
+// footnote leaves that case open, and no published text seen says what to report. lidbox takes
+// the most conservative reading the footnote and the table support: the 1-h sub-index is held
+// at 200, the top of the 1-h scale (row 186-304 ppb -> 151-200), since the 1-h value may not
+// define anything higher and the 24-h mean defines nothing below 201; the higher of that and
+// the 24-h sub-index counts. So a 350 ppb hour makes the day at least "Unhealthy", never
+// "Good" (SubIndex::held_at_scale_top marks it).
 #pragma once
 
 #include <optional>
@@ -52,6 +62,8 @@ struct SubIndex {
   double concentration = 0.0;  // after truncation, in aqi_input_unit()
   int aqi = 0;
   bool beyond_the_aqi = false;  // above the top breakpoint: extrapolated on the top row
+  // 1-h SO2 above 304 ppb: the sub-index is held at 200, the top of the 1-h scale (see above).
+  bool held_at_scale_top = false;
 };
 
 // Sub-index of a concentration in aqi_input_unit(p). Empty when the table does not define it:
@@ -74,7 +86,8 @@ struct DailyAqi {
 // Daily AQI from named hourly series: O3 8-h = 17-window daily maximum and 1-h = daily maximum
 // (the higher sub-index is used, 74 FR 30469 footnote 1), PM2.5 and PM10 daily means, CO daily
 // maximum of the 24 8-h means starting in the day (common practice, no source), SO2 and NO2
-// daily maximum hours; only complete days (75 %) are used. Gases are converted at 25 degC and
+// daily maximum hours (a 1-h SO2 maximum above 304 ppb held at 200, see above); only complete
+// days (75 %) are used. Gases are converted at 25 degC and
 // 101.325 kPa. Days with no sub-index are left out.
 std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, AqiTable table);
 

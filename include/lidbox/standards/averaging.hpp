@@ -10,7 +10,10 @@
 // * A k-hour running mean is computed for every hour i as the mean of hours i .. i+k-1 that are
 //   present (the "divide by the hours present" rule of 40 CFR 50.8 for CO and Appendix U for
 //   ozone), provided at least `min_valid_h` of them are present; otherwise it is missing. Hours
-//   before the first and after the last value of the series count as missing.
+//   before the first and after the last value of the series count as missing, at both ends
+//   alike: daily 8-h maxima also take the k-1 windows that start before the first hour and end
+//   inside the series (WindowSpan::reaching_into_series), as they take the windows that run
+//   past its end.
 // * A running mean has two labels: the start of its first hour (US ozone, Appendix U) and the
 //   end of its last hour (EU, Directive 2008/50/EC Annex VII/XI: "assigned to the day on which it
 //   ends"). pandas' trailing rolling(k) labels the start of the last hour, i.e. end - 1 h.
@@ -58,9 +61,16 @@ std::string to_string(Rounding rounding);
 
 enum class WindowLabel { start, end };
 
+// Which windows running_means() computes.
+enum class WindowSpan {
+  from_each_hour,        // one window starting at each hour of the series
+  reaching_into_series,  // also the k-1 windows starting before the first hour
+};
+
 struct RunningMeans {
   int window_h = 1;
   int min_valid_h = 1;
+  std::size_t leading_windows = 0;        // windows starting before the series' first hour
   UtcSeconds first_window_start_utc = 0;  // window i covers [start + i h, start + (i + k) h)
   std::vector<double> mean;               // NaN where fewer than min_valid_h hours are present
   std::vector<int> valid_h;               // hours present in window i
@@ -78,8 +88,10 @@ struct RunningMeans {
 };
 
 // One window per hour of the series, starting at each hour (so the last k-1 windows run past
-// the end and are usually incomplete). window_h >= 1, 1 <= min_valid_h <= window_h.
-RunningMeans running_means(const HourlySeries& series, int window_h, int min_valid_h);
+// the end and are usually incomplete); with WindowSpan::reaching_into_series also the k-1
+// windows before them that end inside the series. window_h >= 1, 1 <= min_valid_h <= window_h.
+RunningMeans running_means(const HourlySeries& series, int window_h, int min_valid_h,
+                           WindowSpan span = WindowSpan::from_each_hour);
 
 // ---------------------------------------------------------------- daily values (LST)
 
@@ -132,7 +144,10 @@ inline constexpr DailyWindowRule kUsOzoneDayWindows{7, 17, 13};
 // 24:00; day complete with 18 valid windows (75 %, Annex VII A.2).
 inline constexpr DailyWindowRule kEuDayWindows{-7, 24, 18};
 
-// Highest valid running mean among a day's windows. valid_count counts valid windows.
+// Highest valid running mean among a day's windows. valid_count counts valid windows. The days
+// are those holding a window that starts inside the series; windows starting before it (see
+// WindowSpan) count toward those days, so a series starting at 00:00 gives the EU day one its
+// windows from 22:00 and 23:00 the previous day (6 and 7 hours present).
 DailyValues daily_max_of_windows(const RunningMeans& means, int lst_offset_s, DailyWindowRule rule);
 
 // ---------------------------------------------------------------- months, quarters, years (LST)

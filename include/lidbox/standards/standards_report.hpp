@@ -20,6 +20,15 @@ namespace lidbox {
 struct RollingRequest {
   int window_h = 8;
   int min_valid_h = 6;
+
+  // Tables and variables are named by window and minimum, so "8" and "8:8" never clash:
+  // "8h_min6", as in rolling_8h_min6.csv and CO_mean_8h_min6.
+  [[nodiscard]] std::string name() const {
+    return std::to_string(window_h) + "h_min" + std::to_string(min_valid_h);
+  }
+  [[nodiscard]] bool operator==(const RollingRequest& o) const {
+    return window_h == o.window_h && min_valid_h == o.min_valid_h;
+  }
 };
 
 struct ReportOptions {
@@ -29,7 +38,7 @@ struct ReportOptions {
   AqiTable aqi_table = AqiTable::epa_2024;
   bool with_aqi = true;
   bool with_aqhi = true;
-  std::vector<RollingRequest> rolling;  // extra running-mean tables
+  std::vector<RollingRequest> rolling;  // extra running-mean tables (a request given twice: once)
   std::string input_label;              // e.g. "observations obs.csv", "model run case.toml"
   std::string file_prefix;              // written files are file_prefix + name ("obs_limits.csv")
 };
