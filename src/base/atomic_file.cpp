@@ -7,6 +7,7 @@
 #include <system_error>
 
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/work_meter.hpp"
 
 namespace lidbox {
 
@@ -72,6 +73,7 @@ void write_files_atomically(
       std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
       if (!out) fail(target, std::strerror(errno));
       out.write(content.data(), static_cast<std::streamsize>(content.size()));
+      work_meter::add(content.size());
       out.close();
       if (!out) fail(target, "write failed");
     }

@@ -6,14 +6,15 @@
 
 #include "lidbox/analysis/run_standards.hpp"
 #include "lidbox/base/atomic_file.hpp"
+#include "lidbox/base/output_folder.hpp"
 #include "lidbox/diagnostics/daily_diagnostics.hpp"
 #include "lidbox/engine/case_file.hpp"
 #include "lidbox/engine/run.hpp"
+#include "lidbox/report/cut_report.hpp"
 #include "lidbox/report/diagnostics_report.hpp"
+#include "lidbox/report/ensemble_report.hpp"
 #include "lidbox/report/run_netcdf.hpp"
 #include "lidbox/report/run_report.hpp"
-#include "lidbox/report/cut_report.hpp"
-#include "lidbox/report/ensemble_report.hpp"
 #include "progress.hpp"
 
 namespace lidbox::cli {
@@ -51,24 +52,23 @@ void add_run_command(CLI::App& app, int& exit_code) {
   run->callback([opt, &exit_code] {
     const CaseSpec c = load_case(opt->case_file);
     const MetSeries met = read_case_met(c);
-    Progress progress;
-    const RunResult r =
-        run_case(c, met, [&progress](double f, const char* stage) { progress.update(f, stage); });
-    progress.finish();
-    std::optional<UtcSeconds> issue;
-    if (!opt->issue_time.empty()) issue = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
-    const auto standards = run_standards(c, r, issue);
     const DiagnosticsSetup diag =
         load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
+    // The output folder is checked and its temporary made before the run, so a bad place
+    // fails at once rather than after a long run.
+    OutputFolder out(opt->output_dir.empty() ? c.output_directory : opt->output_dir);
+    Progress progress;
+    RunWriteOptions o;
+    o.netcdf = opt->netcdf || c.netcdf_output;
+    if (!opt->issue_time.empty())
+      o.issue_time = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
+    o.progress = [&progress](double f, const char* stage) { progress.update(f, stage); };
+    o.after_run = [&progress] { progress.finish(); };
+    RunWritten w = run_and_write(out, c, met, o);
     const DiagnosticsResult days = diagnose_met(met, c.met.reading, c.met.hour_label, c.zone, diag);
-    auto files = render_run_outputs(c, met, r, standards ? &*standards : nullptr);
+    std::vector<OutputFile> files = {{"summary.txt", std::move(w.summary)}};
     append_diagnostics_outputs(files, diag, days);
-    if (opt->netcdf || c.netcdf_output) {
-      for (auto& f : render_run_netcdf_outputs(c, r, standards ? &*standards : nullptr)) {
-        files.push_back(std::move(f));
-      }
-    }
-    const auto rule_sets = standards ? standards->options.rule_sets : std::vector<RuleSet>{};
+    const auto rule_sets = w.standards ? w.standards->options.rule_sets : std::vector<RuleSet>{};
     std::optional<EnsembleOutcome> ens;
     if (c.ensemble) {
       ens = forecast_ensemble(c, met, rule_sets,
@@ -83,11 +83,11 @@ void add_run_command(CLI::App& app, int& exit_code) {
       append_section(files, "summary.txt", render_cut_summary(c, cut));
       files.push_back({"cut.csv", render_cut_csv(c, cut)});
     }
-    const std::string dir = opt->output_dir.empty() ? c.output_directory : opt->output_dir;
-    const auto written = write_output_files(dir, files);
+    for (const auto& f : files) out.write_whole(f.name, f.content);
+    const auto written = out.publish();
     if (!opt->quiet) {
-      std::cout << output_named(files, "summary.txt").content << "\nWritten:";
-      for (const auto& w : written) std::cout << ' ' << w.string();
+      std::cout << files.front().content << "\nWritten:";
+      for (const auto& p : written) std::cout << ' ' << p.string();
       std::cout << '\n';
     }
     exit_code = 0;

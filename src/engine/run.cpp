@@ -17,6 +17,8 @@ double RunResult::total(std::size_t hour, std::size_t p) const {
 }
 
 double RunResult::closure_g_m2(std::size_t hour, std::size_t p, bool residual_layer) const {
+  if (budget_streamed)
+    throw InternalError("the closure of an hour of a run whose budget was streamed");
   double lines = 0.0;
   for (std::size_t i = 0; i <= hour; ++i) {
     const BudgetTerms& b = budget_of(i, p);
@@ -29,11 +31,37 @@ double RunResult::closure_g_m2(std::size_t hour, std::size_t p, bool residual_la
   return storage - lines;
 }
 
-double RunResult::relative_closure(std::size_t p, bool residual_layer) const {
+std::vector<double> RunResult::closure_series_g_m2(bool residual_layer) const {
+  if (budget_streamed) throw InternalError("the closure series of a run whose budget was streamed");
+  std::vector<double> out(hours.size() * n_pollutants);
+  for (std::size_t p = 0; p < n_pollutants; ++p) {
+    double lines = 0.0;
+    for (std::size_t i = 0; i < hours.size(); ++i) {
+      const BudgetTerms& b = budget_of(i, p);
+      lines += residual_layer ? b.mixed_layer_change() + b.residual_layer_change() : b.mixed_layer_change();
+      double storage = mixed_mass(i, p) - initial_mixed_mass_g_m2[p];
+      if (residual_layer) {
+        storage += residual_mass(i, p) - initial_residual_mass_g_m2[p];
+      }
+      out[at(i, p)] = storage - lines;
+    }
+  }
+  return out;
+}
+
+double RunResult::closure_latest_g_m2(std::size_t hour, std::size_t p) const {
+  double storage = mixed_mass(hour, p) - initial_mixed_mass_g_m2[p];
+  if (stepped_with_residual_layer) storage += residual_mass(hour, p) - initial_residual_mass_g_m2[p];
+  return storage - lines_sum_g_m2[p];
+}
+
+double RunResult::relative_closure(std::size_t p, bool residual_layer_lines) const {
   if (hours.empty()) return 0.0;
-  double scale = 0.0;
-  for (std::size_t i = 0; i < hours.size(); ++i) scale += budget_of(i, p).magnitude();
-  const double r = closure_g_m2(hours.size() - 1, p, residual_layer);
+  if (residual_layer_lines != stepped_with_residual_layer) {
+    throw InternalError("relative closure asked with other layers than the run had");
+  }
+  const double r = closure_latest_g_m2(hours.size() - 1, p);
+  const double scale = magnitude_sum_g_m2[p];
   return scale > 0.0 ? std::fabs(r) / scale : 0.0;
 }
 
@@ -275,13 +303,17 @@ void set_initial_state(const CaseSpec& c, const MetSeries& met, const Forcing& F
   }
 }
 
-void allocate(RunResult& R, std::size_t n, std::size_t P, std::size_t J) {
+void allocate(RunResult& R, std::size_t n, std::size_t P, std::size_t J, bool keep_budget) {
   R.mean_g_m3.assign(n * P * J, 0.0);
   R.end_mixed_g_m3.assign(n * P, 0.0);
   R.end_residual_g_m3.assign(n * P, 0.0);
-  R.budget.assign(n * P, BudgetTerms{});
-  R.mixed_mass_g_m2.assign(n * P, 0.0);
-  R.residual_mass_g_m2.assign(n * P, 0.0);
+  const std::size_t nb = keep_budget ? n : 1;
+  R.budget_streamed = !keep_budget;
+  R.budget.assign(nb * P, BudgetTerms{});
+  R.mixed_mass_g_m2.assign(nb * P, 0.0);
+  R.residual_mass_g_m2.assign(nb * P, 0.0);
+  R.lines_sum_g_m2.assign(P, 0.0);
+  R.magnitude_sum_g_m2.assign(P, 0.0);
   R.initial_mixed_mass_g_m2.assign(P, 0.0);
   R.initial_residual_mass_g_m2.assign(P, 0.0);
 }
@@ -305,16 +337,23 @@ void record_hour(std::size_t i, const BoxEngine& engine, const BoxState& state, 
     const std::size_t k = R.at(i, p);
     R.end_mixed_g_m3[k] = state.c_total(p);
     R.end_residual_g_m3[k] = state.residual_mean_total(p);
-    R.budget[k] = hr.budget[p];
-    R.mixed_mass_g_m2[k] = engine.mixed_mass(state, p);
-    R.residual_mass_g_m2[k] = engine.residual_mass(state, p);
+    const std::size_t kb = R.budget_at(i, p);
+    const BudgetTerms& b = hr.budget[p];
+    R.budget[kb] = b;
+    R.mixed_mass_g_m2[kb] = engine.mixed_mass(state, p);
+    R.residual_mass_g_m2[kb] = engine.residual_mass(state, p);
+    R.lines_sum_g_m2[p] += R.stepped_with_residual_layer ? b.mixed_layer_change() + b.residual_layer_change()
+                                            : b.mixed_layer_change();
+    R.magnitude_sum_g_m2[p] += b.magnitude();
   }
 }
 
 }  // namespace
 
-RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& progress) {
+RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& progress,
+                   const RunStreaming& streaming) {
   RunResult R;
+  R.stepped_with_residual_layer = c.engine.residual_layer;
   Forcing F = build_forcing(c, met, R.hours);
   const std::size_t n = F.n_hours;
   const std::size_t P = F.n_pollutants;
@@ -330,7 +369,7 @@ RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& pr
   } else {
     set_initial_state(c, met, F, state);
   }
-  allocate(R, n, P, R.n_parts);
+  allocate(R, n, P, R.n_parts, streaming.keep_budget);
   for (std::size_t p = 0; p < P; ++p) {
     R.initial_mixed_mass_g_m2[p] = engine.mixed_mass(state, p);
     R.initial_residual_mass_g_m2[p] = engine.residual_mass(state, p);
@@ -341,6 +380,7 @@ RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& pr
   for (std::size_t i = 0; i < n; ++i) {
     engine.step_hour(state, F, i, hr);
     record_hour(i, engine, state, hr, R);
+    if (streaming.on_hour) streaming.on_hour(R, i);
     if (progress && (i + 1) % report_every == 0) progress(static_cast<double>(i + 1) / static_cast<double>(n), "run");
   }
   return R;

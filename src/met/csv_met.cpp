@@ -40,6 +40,79 @@ Role role_of(const std::string& name) {
   return Role::extra;
 }
 
+// The text's lines as views, split at \n with a \r before it dropped (as split_lines), numbered
+// from 1; no copy of the file.
+class Lines {
+ public:
+  explicit Lines(std::string_view text) : text_(text) {}
+  bool next(std::string_view& line, int& number) {
+    if (pos_ >= text_.size()) return false;
+    std::size_t end = text_.find('\n', pos_);
+    if (end == std::string_view::npos) end = text_.size();
+    line = text_.substr(pos_, end - pos_);
+    if (!line.empty() && line.back() == '\r') line.remove_suffix(1);
+    pos_ = end + 1;
+    number = ++number_;
+    return true;
+  }
+
+ private:
+  std::string_view text_;
+  std::size_t pos_ = 0;
+  int number_ = 0;
+};
+
+// A cell of plain decimal digits (an optional leading minus, at most one point) of up to 20
+// characters: parsed with std::from_chars, which gives the same correctly rounded value as the
+// strtod of parse_double; such a cell can neither overflow nor underflow. Anything else goes to
+// parse_double, which decides.
+bool parse_cell(std::string_view cell, double& value) {
+  if (cell.size() <= 20) {
+    bool plain = true;
+    int points = 0;
+    for (std::size_t i = 0; i < cell.size() && plain; ++i) {
+      const char c = cell[i];
+      if (c == '.') {
+        ++points;
+      } else if (!(c >= '0' && c <= '9') && !(c == '-' && i == 0)) {
+        plain = false;
+      }
+    }
+    if (plain && points <= 1) {
+      const auto [end, ec] = std::from_chars(cell.data(), cell.data() + cell.size(), value);
+      if (ec == std::errc() && end == cell.data() + cell.size()) return true;
+    }
+  }
+  return parse_double(cell, value);
+}
+
+int two(std::string_view s, std::size_t at) {
+  const char a = s[at], b = s[at + 1];
+  if (a < '0' || a > '9' || b < '0' || b > '9') return -1;
+  return (a - '0') * 10 + (b - '0');
+}
+
+// The common "YYYY-MM-DDTHH:MM:SSZ" of years 1900-2199, read without the general parser; false
+// for anything else (or anything doubtful), which parse_iso8601 then reads or refuses.
+bool quick_utc(std::string_view s, UtcSeconds& t) {
+  if (s.size() != 20 || s[4] != '-' || s[7] != '-' || s[10] != 'T' || s[13] != ':' ||
+      s[16] != ':' || s[19] != 'Z') {
+    return false;
+  }
+  const int y1 = two(s, 0), y2 = two(s, 2), mo = two(s, 5), d = two(s, 8), h = two(s, 11),
+            mi = two(s, 14), se = two(s, 17);
+  if (y1 < 19 || y1 > 21 || y2 < 0 || mo < 1 || mo > 12 || d < 1 || h < 0 || h > 23 || mi < 0 ||
+      mi > 59 || se < 0 || se > 59) {
+    return false;
+  }
+  const int y = y1 * 100 + y2;
+  static const int kDays[12] = {31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
+  const bool leap = (y % 4 == 0 && y % 100 != 0) || y % 400 == 0;
+  if (d > kDays[mo - 1] + (mo == 2 && leap ? 1 : 0)) return false;
+  t = days_from_civil(y, mo, d) * kSecondsPerDay + h * 3600 + mi * 60 + se;
+  return true;
+}
+
 struct Column {
   Role role;
   std::string header;
@@ -52,16 +125,23 @@ struct Column {
 
 MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
                         const std::string& display_name) {
-  const std::vector<std::string> lines = split_lines(text);
-  std::size_t first = 0;
-  while (first < lines.size() && trim(lines[first]).empty()) ++first;
-  if (first == lines.size()) {
+  Lines lines(text);
+  std::string_view header_line;
+  int header_no = 0;
+  bool have_header = false;
+  while (lines.next(header_line, header_no)) {
+    if (!trim(header_line).empty()) {
+      have_header = true;
+      break;
+    }
+  }
+  if (!have_header) {
     throw InputError(display_name, "the file is empty",
                      "a header row such as \"time,mixing_height [m],wind_speed [m/s],wind_from "
                      "[deg]\" and hourly rows");
   }
-  const std::vector<std::string> headers = split_csv_row(lines[first]);
-  const std::string header_where = display_name + ":" + std::to_string(first + 1);
+  const std::vector<std::string> headers = split_csv_row(std::string(header_line));
+  const std::string header_where = display_name + ":" + std::to_string(header_no);
   std::vector<Column> cols;
   int time_col = -1;
   for (std::size_t c = 0; c < headers.size(); ++c) {
@@ -142,29 +222,56 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
   const double nan = std::nan("");
   UtcSeconds previous = 0;
   bool any = false;
-  for (std::size_t li = first + 1; li < lines.size(); ++li) {
-    if (trim(lines[li]).empty()) continue;
-    const int line_no = static_cast<int>(li + 1);
-    const std::string where = display_name + ":" + std::to_string(line_no);
-    const std::vector<std::string> cells = split_csv_row(lines[li]);
+  // The rows: cells are views into the file's text, the message texts are built only for an
+  // error.
+  std::vector<std::string_view> cells;
+  std::vector<std::string> quoted;
+  std::string_view line;
+  int line_no = 0;
+  while (lines.next(line, line_no)) {
+    if (trim(line).empty()) continue;
+    const auto where = [&display_name, &line_no] {
+      return display_name + ":" + std::to_string(line_no);
+    };
+    cells.clear();
+    if (line.find('"') != std::string_view::npos) {
+      quoted = split_csv_row(std::string(line));
+      for (const auto& q : quoted) cells.emplace_back(q);
+    } else {
+      std::size_t start = 0;
+      for (;;) {
+        const std::size_t comma = line.find(',', start);
+        if (comma == std::string_view::npos) {
+          cells.push_back(line.substr(start));
+          break;
+        }
+        cells.push_back(line.substr(start, comma - start));
+        start = comma + 1;
+      }
+    }
     if (cells.size() != cols.size()) {
-      throw InputError(where, std::to_string(cells.size()) + " fields",
+      throw InputError(where(), std::to_string(cells.size()) + " fields",
                        std::to_string(cols.size()) + " fields as in the header");
     }
-    const UtcSeconds t = parse_iso8601(trim(cells[time_col]), options.zone_for_naive_times, where);
+    UtcSeconds t = 0;
+    if (!quick_utc(trim(cells[time_col]), t)) {
+      t = parse_iso8601(trim(cells[time_col]), options.zone_for_naive_times, where());
+    }
     if (any) {
       if (t == previous) {
-        throw InputError(where, "time " + format_utc(t) + " repeats the previous row",
+        throw InputError(where(), "time " + format_utc(t) + " repeats the previous row",
                          "strictly increasing hourly times");
       }
       if (t < previous) {
-        throw InputError(where, "time " + format_utc(t) + " is before the previous row's " +
-                                    format_utc(previous),
-                         "strictly increasing hourly times");
+        throw InputError(
+            where(),
+            "time " + format_utc(t) + " is before the previous row's " + format_utc(previous),
+            "strictly increasing hourly times");
       }
       if ((t - previous) % kSecondsPerHour != 0) {
-        throw InputError(where, "time " + format_utc(t) + " is off the hourly grid of " +
-                                    format_utc(met.first_stamp_utc),
+        throw InputError(where(),
+                         "time " + format_utc(t) + " is off the hourly grid of " +
+                             format_utc(met.first_stamp_utc),
                          "times a whole number of hours apart");
       }
       // Missing stamps become gaps for the fill rule.
@@ -187,29 +294,31 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
     for (std::size_t c = 0; c < cols.size(); ++c) {
       const Column& col = cols[c];
       if (col.role == Role::time) continue;
-      const std::string cell(trim(cells[c]));
+      const std::string_view cell_view = trim(cells[c]);
+      const auto cell = [&cell_view] { return std::string(cell_view); };
       double value = nan;
-      if (!cell.empty()) {
-        if (!parse_double(cell, value)) {
-          throw InputError(where + ": column \"" + col.header + "\"",
-                           "\"" + cell + "\" is not a number",
+      if (!cell_view.empty()) {
+        if (!parse_cell(cell_view, value)) {
+          throw InputError(where() + ": column \"" + col.header + "\"",
+                           "\"" + cell() + "\" is not a number",
                            "a decimal number, or an empty cell for a missing value");
         }
         if (col.role != Role::extra) value = col.to_si(value);
       }
-      const std::string cw = where + ": column \"" + col.header + "\"";
+      const auto cw = [&] { return where() + ": column \"" + col.header + "\""; };
       switch (col.role) {
         case Role::mixing_height:
-          if (value < 0.0) throw InputError(cw, "negative mixing height " + cell, "a height >= 0");
+          if (value < 0.0)
+            throw InputError(cw(), "negative mixing height " + cell(), "a height >= 0");
           h = value;
           break;
         case Role::wind_speed:
-          if (value < 0.0) throw InputError(cw, "negative wind speed " + cell, "a speed >= 0");
+          if (value < 0.0) throw InputError(cw(), "negative wind speed " + cell(), "a speed >= 0");
           speed = value;
           break;
         case Role::wind_from:
           if (value < 0.0 || value > 360.0) {
-            throw InputError(cw, "direction " + cell + " outside 0-360 degrees",
+            throw InputError(cw(), "direction " + cell() + " outside 0-360 degrees",
                              "a direction from 0 to 360 degrees clockwise from north");
           }
           from = value;
@@ -221,11 +330,12 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
           v = value;
           break;
         case Role::temperature:
-          if (value <= 0.0) throw InputError(cw, "temperature " + cell, "a temperature above 0 K");
+          if (value <= 0.0)
+            throw InputError(cw(), "temperature " + cell(), "a temperature above 0 K");
           temp = value;
           break;
         case Role::pressure:
-          if (value <= 0.0) throw InputError(cw, "pressure " + cell, "a pressure above 0 Pa");
+          if (value <= 0.0) throw InputError(cw(), "pressure " + cell(), "a pressure above 0 Pa");
           pres = value;
           break;
         case Role::extra:

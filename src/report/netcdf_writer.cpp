@@ -6,10 +6,12 @@
 
 #include <atomic>
 #include <cctype>
+#include <charconv>
 #include <chrono>
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
+#include <cstring>
 #include <filesystem>
 #include <set>
 
@@ -44,7 +46,9 @@ void text_att(int nc, int var, const char* name, const std::string& value) {
   ok(nc_put_att_text(nc, var, name, value.size(), value.c_str()), std::string("attribute ") + name);
 }
 
-void check_table(const CfTable& t) {
+// `streamed`: the variables' values come later (CfStreamWriter), so only their descriptions are
+// checked here.
+void check_table(const CfTable& t, bool streamed = false) {
   const std::size_t n = t.time_utc.size();
   if (n == 0) throw InternalError("CF table without rows");
   for (std::size_t i = 1; i < n; ++i) {
@@ -59,11 +63,12 @@ void check_table(const CfTable& t) {
     if (!names.insert(v.name).second) {
       throw InternalError("CF variable name \"" + v.name + "\" used twice or reserved");
     }
-    if (v.values.size() != n) {
+    if (!streamed && v.values.size() != n) {
       throw InternalError("CF variable \"" + v.name + "\" has " + std::to_string(v.values.size()) +
                           " values for " + std::to_string(n) + " rows");
     }
     if (!v.flag_meanings.empty()) {
+      if (streamed && !v.values.empty()) throw InternalError("streamed variable with values");
       for (double x : v.values) {
         if (!(x >= -128.0 && x <= 127.0) || x != std::floor(x)) {
           throw InternalError("flag variable \"" + v.name + "\" with a non-byte value");
@@ -81,10 +86,30 @@ void check_table(const CfTable& t) {
   }
 }
 
+// The time of the run for `history`: SOURCE_DATE_EPOCH when it is set (seconds since 1970, the
+// reproducible-builds convention, https://reproducible-builds.org/specs/source-date-epoch/), so
+// that a run can be repeated byte for byte; otherwise the wall clock. A value that is not a
+// whole number of seconds is ignored, as the convention allows.
 std::string now_utc() {
+  if (const char* e = std::getenv("SOURCE_DATE_EPOCH")) {
+    long long t = 0;
+    const char* end = e + std::strlen(e);
+    const auto [p, ec] = std::from_chars(e, end, t);
+    if (ec == std::errc() && p == end && p != e && t >= 0) return format_utc(t);
+  }
   const auto now = std::chrono::system_clock::now();
   return format_utc(
       std::chrono::duration_cast<std::chrono::seconds>(now.time_since_epoch()).count());
+}
+
+// Whole series in one contiguous block (NetCDF-4 only; NetCDF-3 stores fixed-size variables
+// contiguously anyway).
+void contiguous(int nc, int var, const std::string& name) {
+  int format = 0;
+  ok(nc_inq_format(nc, &format), "format");
+  if (format == NC_FORMAT_NETCDF4 || format == NC_FORMAT_NETCDF4_CLASSIC) {
+    ok(nc_def_var_chunking(nc, var, NC_CONTIGUOUS, nullptr), "storage of " + name);
+  }
 }
 
 // Ids of what write_file defines, for the data phase.
@@ -110,12 +135,15 @@ void define_globals(int nc, const CfTable& t) {
 // Dimensions, time, time bounds, the station's scalar coordinates (CF 4.4, Appendix H.4).
 void define_coordinates(int nc, const CfTable& t, Layout& L) {
   const bool bounds = t.period_s > 0;
-  ok(nc_def_dim(nc, "time", NC_UNLIMITED, &L.time_dim), "dimension time");
+  // The length is known: a fixed dimension, stored contiguously (below), instead of an unlimited
+  // one in chunks of 512 values.
+  ok(nc_def_dim(nc, "time", t.time_utc.size(), &L.time_dim), "dimension time");
   if (bounds) ok(nc_def_dim(nc, "nv", 2, &L.nv_dim), "dimension nv");
   const bool has_station = !t.station_name.empty();
   if (has_station)
     ok(nc_def_dim(nc, "name_strlen", t.station_name.size(), &L.strlen_dim), "dimension name_strlen");
   ok(nc_def_var(nc, "time", NC_DOUBLE, 1, &L.time_dim, &L.time_var), "variable time");
+  contiguous(nc, L.time_var, "time");
   text_att(nc, L.time_var, "standard_name", "time");
   text_att(nc, L.time_var, "long_name", bounds ? "start of the averaging period" : "time");
   text_att(nc, L.time_var, "units", cf_hours_since(t.time_utc.front()));
@@ -128,6 +156,7 @@ void define_coordinates(int nc, const CfTable& t, Layout& L) {
              "each value covers the period [time_bnds(0), time_bnds(1)); time is its start");
     const int dims[2] = {L.time_dim, L.nv_dim};
     ok(nc_def_var(nc, "time_bnds", NC_DOUBLE, 2, dims, &L.bnds_var), "variable time_bnds");
+    contiguous(nc, L.bnds_var, "time_bnds");
   }
   const auto scalar = [&](const char* name, const char* sn, const char* units, double value) {
     int v = 0;
@@ -155,6 +184,7 @@ int define_variable(int nc, const CfVariable& v, const Layout& L) {
   int id = 0;
   ok(nc_def_var(nc, v.name.c_str(), flag ? NC_BYTE : NC_DOUBLE, 1, &L.time_dim, &id),
      "variable " + v.name);
+  contiguous(nc, id, v.name);
   if (!flag) {
     const double fill = NC_FILL_DOUBLE;
     ok(nc_put_att_double(nc, id, "_FillValue", NC_DOUBLE, 1, &fill), "_FillValue of " + v.name);
@@ -180,7 +210,7 @@ int define_variable(int nc, const CfVariable& v, const Layout& L) {
   return id;
 }
 
-void put_values(int nc, const CfTable& t, const Layout& L) {
+void put_coordinates(int nc, const CfTable& t, const Layout& L) {
   const std::size_t n = t.time_utc.size();
   const UtcSeconds t0 = t.time_utc.front();
   std::vector<double> hours(n);
@@ -201,32 +231,106 @@ void put_values(int nc, const CfTable& t, const Layout& L) {
   }
   for (auto [v, value] : L.scalars) ok(nc_put_var_double(nc, v, &value), "coordinate value");
   if (L.station_var >= 0) ok(nc_put_var_text(nc, L.station_var, t.station_name.c_str()), "station_name");
-  for (std::size_t k = 0; k < t.vars.size(); ++k) {
-    const auto& v = t.vars[k];
-    if (!v.flag_meanings.empty()) {
-      std::vector<signed char> b;
-      for (double x : v.values) b.push_back(static_cast<signed char>(x));
-      ok(nc_put_vara_schar(nc, L.ids[k], &start0, &n, b.data()), "values of " + v.name);
-    } else {
-      std::vector<double> out(v.values);
-      for (auto& x : out) {
-        if (std::isnan(x)) x = NC_FILL_DOUBLE;
+}
+
+// Rows [first, first + n) of one variable: NaN becomes the fill value; flags go as bytes.
+void put_variable(int nc, int id, const CfVariable& v, std::size_t first, const double* values,
+                  std::size_t n) {
+  if (!v.flag_meanings.empty()) {
+    std::vector<signed char> b(n);
+    for (std::size_t i = 0; i < n; ++i) {
+      if (!(values[i] >= -128.0 && values[i] <= 127.0) || values[i] != std::floor(values[i])) {
+        throw InternalError("flag variable \"" + v.name + "\" with a non-byte value");
       }
-      ok(nc_put_vara_double(nc, L.ids[k], &start0, &n, out.data()), "values of " + v.name);
+      b[i] = static_cast<signed char>(values[i]);
     }
+    ok(nc_put_vara_schar(nc, id, &first, &n, b.data()), "values of " + v.name);
+  } else {
+    std::vector<double> out(values, values + n);
+    for (auto& x : out) {
+      if (std::isnan(x)) x = NC_FILL_DOUBLE;
+    }
+    ok(nc_put_vara_double(nc, id, &first, &n, out.data()), "values of " + v.name);
   }
 }
 
-void write_file(int nc, const CfTable& t) {
+Layout define_file(int nc, const CfTable& t) {
   Layout L;
   define_coordinates(nc, t, L);
   define_globals(nc, t);
   for (const auto& v : t.vars) L.ids.push_back(define_variable(nc, v, L));
   ok(nc_enddef(nc), "end of definitions");
-  put_values(nc, t, L);
+  put_coordinates(nc, t, L);
+  return L;
+}
+
+void write_file(int nc, const CfTable& t) {
+  const Layout L = define_file(nc, t);
+  for (std::size_t k = 0; k < t.vars.size(); ++k) {
+    put_variable(nc, L.ids[k], t.vars[k], 0, t.vars[k].values.data(), t.time_utc.size());
+  }
 }
 
 }  // namespace
+
+void write_cf_file(const std::string& path, const CfTable& table, CfFileFormat format) {
+  check_table(table);
+  const int mode =
+      NC_CLOBBER |
+      (format == CfFileFormat::netcdf4_classic ? (NC_NETCDF4 | NC_CLASSIC_MODEL) : NC_64BIT_OFFSET);
+  int nc = -1;
+  try {
+    ok(nc_create(path.c_str(), mode, &nc), "create");
+    write_file(nc, table);
+    const int st = nc_close(nc);
+    nc = -1;
+    ok(st, "close");
+  } catch (const WriteFailure& e) {
+    if (nc >= 0) nc_close(nc);
+    throw InputError(path, "writing failed (" + e.what + ")", "a writable output location");
+  }
+}
+
+CfStreamWriter::CfStreamWriter(std::string path, CfTable layout, CfFileFormat format)
+    : path_(std::move(path)), layout_(std::move(layout)) {
+  check_table(layout_, true);
+  const int mode =
+      NC_CLOBBER |
+      (format == CfFileFormat::netcdf4_classic ? (NC_NETCDF4 | NC_CLASSIC_MODEL) : NC_64BIT_OFFSET);
+  try {
+    ok(nc_create(path_.c_str(), mode, &nc_), "create");
+    ids_ = define_file(nc_, layout_).ids;
+  } catch (const WriteFailure& e) {
+    if (nc_ >= 0) nc_close(nc_);
+    nc_ = -1;
+    throw InputError(path_, "writing failed (" + e.what + ")", "a writable output location");
+  }
+}
+
+CfStreamWriter::~CfStreamWriter() {
+  if (nc_ >= 0) nc_close(nc_);
+}
+
+void CfStreamWriter::put(std::size_t k, std::size_t first_row, const double* values,
+                         std::size_t n) {
+  if (k >= ids_.size() || first_row + n > layout_.time_utc.size()) {
+    throw InternalError("CF stream: rows or variable out of range");
+  }
+  try {
+    put_variable(nc_, ids_[k], layout_.vars[k], first_row, values, n);
+  } catch (const WriteFailure& e) {
+    throw InputError(path_, "writing failed (" + e.what + ")", "a writable output location");
+  }
+}
+
+void CfStreamWriter::close() {
+  const int st = nc_close(nc_);
+  nc_ = -1;
+  if (st != NC_NOERR) {
+    throw InputError(path_, std::string("writing failed (close: ") + nc_strerror(st) + ")",
+                     "a writable output location");
+  }
+}
 
 void write_cf_timeseries(const std::string& path, const CfTable& table, CfFileFormat format) {
   check_table(table);

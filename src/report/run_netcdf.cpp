@@ -4,6 +4,8 @@
 #include <cctype>
 #include <cmath>
 #include <cstdio>
+#include <functional>
+#include <memory>
 
 #include "lidbox/base/error.hpp"
 #include "lidbox/met/netcdf_met.hpp"
@@ -181,46 +183,45 @@ CfTable hourly_cf_table(const CaseSpec& c, const RunResult& r) {
   return t;
 }
 
-CfTable budget_cf_table(const CaseSpec& c, const RunResult& r) {
+namespace {
+
+struct BudgetLine {
+  const char* name;
+  double BudgetTerms::*member;
+  const char* long_name;
+};
+
+const BudgetLine kBudgetLines[] = {
+    {"emitted", &BudgetTerms::emitted, "emitted into the mixed layer"},
+    {"advected_in", &BudgetTerms::advected_in, "carried in by the wind"},
+    {"advected_out", &BudgetTerms::advected_out, "carried out by the wind"},
+    {"reacted", &BudgetTerms::reacted, "removed by first-order loss"},
+    {"deposited", &BudgetTerms::deposited, "deposited to the surface"},
+    {"entrained_from_residual", &BudgetTerms::entrained_from_residual,
+     "entrained from the residual layer"},
+    {"entrained_from_free_troposphere", &BudgetTerms::entrained_from_free_troposphere,
+     "entrained from the free troposphere"},
+    {"detrained", &BudgetTerms::detrained, "left behind above a falling lid"},
+    {"residual_reacted", &BudgetTerms::residual_reacted, "removed in the residual layer"},
+    {"residual_advected_in", &BudgetTerms::residual_advected_in, "carried into the residual layer"},
+    {"residual_advected_out", &BudgetTerms::residual_advected_out,
+     "carried out of the residual layer"},
+    {"vented_aloft", &BudgetTerms::vented_aloft,
+     "older residual air vented to the free troposphere when a new mixing cycle begins"},
+};
+
+}  // namespace
+
+CfTable budget_cf_layout(const CaseSpec& c, const RunResult& r) {
   CfTable t = hours_table(c, r, "mass budget");
   t.global_attributes["footprint_area_m2"] = number(c.footprint.area_m2());
-  const double A = c.footprint.area_m2();
-  const bool rl = c.engine.residual_layer;
-  struct Line {
-    const char* name;
-    double BudgetTerms::*member;
-    const char* long_name;
-  };
-  static const Line lines[] = {
-      {"emitted", &BudgetTerms::emitted, "emitted into the mixed layer"},
-      {"advected_in", &BudgetTerms::advected_in, "carried in by the wind"},
-      {"advected_out", &BudgetTerms::advected_out, "carried out by the wind"},
-      {"reacted", &BudgetTerms::reacted, "removed by first-order loss"},
-      {"deposited", &BudgetTerms::deposited, "deposited to the surface"},
-      {"entrained_from_residual", &BudgetTerms::entrained_from_residual,
-       "entrained from the residual layer"},
-      {"entrained_from_free_troposphere", &BudgetTerms::entrained_from_free_troposphere,
-       "entrained from the free troposphere"},
-      {"detrained", &BudgetTerms::detrained, "left behind above a falling lid"},
-      {"residual_reacted", &BudgetTerms::residual_reacted, "removed in the residual layer"},
-      {"residual_advected_in", &BudgetTerms::residual_advected_in,
-       "carried into the residual layer"},
-      {"residual_advected_out", &BudgetTerms::residual_advected_out,
-       "carried out of the residual layer"},
-      {"vented_aloft", &BudgetTerms::vented_aloft,
-       "older residual air vented to the free troposphere when a new mixing cycle begins"},
-  };
-  const std::size_t n = r.hours.size();
   for (std::size_t p = 0; p < r.n_pollutants; ++p) {
     const std::string P = cf_variable_name(c.pollutants[p].name);
     const std::string& name = c.pollutants[p].name;
-    for (const auto& line : lines) {
-      CfVariable v = var(P + "_" + line.name, "",
-                         name + " " + line.long_name + ", over the footprint", "g h-1", kHourMean);
-      for (std::size_t i = 0; i < n; ++i) {
-        v.values.push_back(r.budget_of(i, p).*(line.member) * A);
-      }
-      t.vars.push_back(std::move(v));
+    for (const auto& line : kBudgetLines) {
+      t.vars.push_back(var(P + "_" + line.name, "",
+                           name + " " + line.long_name + ", over the footprint", "g h-1",
+                           kHourMean));
     }
     CfVariable mm = var(P + "_mixed_layer_mass", "", name + " mass in the mixed layer", "g", "");
     CfVariable rm =
@@ -229,14 +230,39 @@ CfTable budget_cf_table(const CaseSpec& c, const RunResult& r) {
         var(P + "_cumulative_closure", "",
             name + " storage change minus the sum of the lines since the start", "g", "");
     mm.comment = rm.comment = cl.comment = kAtEnd;
-    for (std::size_t i = 0; i < n; ++i) {
-      mm.values.push_back(r.mixed_mass(i, p) * A);
-      rm.values.push_back(r.residual_mass(i, p) * A);
-      cl.values.push_back(r.closure_g_m2(i, p, rl) * A);
-    }
     t.vars.push_back(std::move(mm));
     t.vars.push_back(std::move(rm));
     t.vars.push_back(std::move(cl));
+  }
+  return t;
+}
+
+std::size_t budget_values_per_hour(const RunResult& r) {
+  return r.n_pollutants * (std::size(kBudgetLines) + 3);
+}
+
+void budget_hour_values(const CaseSpec& c, const RunResult& r, std::size_t i,
+                        const double* closure_g_m2, double* out) {
+  const double A = c.footprint.area_m2();
+  for (std::size_t p = 0; p < r.n_pollutants; ++p) {
+    const BudgetTerms& b = r.budget_of(i, p);
+    for (const auto& line : kBudgetLines) *out++ = b.*(line.member) * A;
+    *out++ = r.mixed_mass(i, p) * A;
+    *out++ = r.residual_mass(i, p) * A;
+    *out++ = closure_g_m2[p] * A;
+  }
+}
+
+CfTable budget_cf_table(const CaseSpec& c, const RunResult& r) {
+  CfTable t = budget_cf_layout(c, r);
+  const std::size_t n = r.hours.size();
+  const std::size_t P = r.n_pollutants;
+  const std::vector<double> closure = r.closure_series_g_m2(c.engine.residual_layer);
+  for (auto& v : t.vars) v.values.resize(n);
+  std::vector<double> row(budget_values_per_hour(r));
+  for (std::size_t i = 0; i < n; ++i) {
+    budget_hour_values(c, r, i, closure.data() + i * P, row.data());
+    for (std::size_t k = 0; k < row.size(); ++k) t.vars[k].values[i] = row[k];
   }
   return t;
 }
@@ -340,25 +366,48 @@ std::vector<CfTable> running_means_cf_tables(const CaseSpec& c, const StandardsR
   return tables;
 }
 
-std::vector<OutputFile> render_run_netcdf_outputs(const CaseSpec& c, const RunResult& r,
-                                                  const StandardsReport* standards,
-                                                  CfFileFormat format) {
-  std::vector<OutputFile> out = {
-      {"hourly.nc", render_cf_timeseries(hourly_cf_table(c, r), format)},
-      {"budget.nc", render_cf_timeseries(budget_cf_table(c, r), format)}};
+namespace {
+
+// The run's NetCDF files by name, each table built only when its file is written.
+std::vector<std::pair<std::string, std::function<CfTable()>>> run_netcdf_tables(
+    const CaseSpec& c, const RunResult& r, const StandardsReport* standards) {
+  std::vector<std::pair<std::string, std::function<CfTable()>>> out;
+  out.emplace_back("hourly.nc", [&c, &r] { return hourly_cf_table(c, r); });
+  if (!r.budget_streamed) out.emplace_back("budget.nc", [&c, &r] { return budget_cf_table(c, r); });
   if (standards && !standards->daily.empty()) {
-    out.push_back(
-        {"daily.nc", render_cf_timeseries(daily_statistics_cf_table(c, *standards), format)});
+    out.emplace_back("daily.nc",
+                     [&c, standards] { return daily_statistics_cf_table(c, *standards); });
   }
   if (standards) {
-    // One table per request, in the order of the requests (running_means_cf_tables).
-    const auto tables = running_means_cf_tables(c, *standards);
-    for (std::size_t i = 0; i < tables.size(); ++i) {
-      out.push_back({"rolling_" + standards->options.rolling[i].name() + ".nc",
-                     render_cf_timeseries(tables[i], format)});
+    // One table per request, in the order of the requests (running_means_cf_tables); small
+    // (one value per window), built together and handed out one by one.
+    auto rolling = std::make_shared<std::vector<CfTable>>(running_means_cf_tables(c, *standards));
+    for (std::size_t k = 0; k < rolling->size(); ++k) {
+      out.emplace_back("rolling_" + standards->options.rolling[k].name() + ".nc",
+                       [rolling, k] { return std::move((*rolling)[k]); });
     }
   }
   return out;
+}
+
+}  // namespace
+
+std::vector<OutputFile> render_run_netcdf_outputs(const CaseSpec& c, const RunResult& r,
+                                                  const StandardsReport* standards,
+                                                  CfFileFormat format) {
+  std::vector<OutputFile> out;
+  for (const auto& [name, table] : run_netcdf_tables(c, r, standards)) {
+    out.push_back({name, render_cf_timeseries(table(), format)});
+  }
+  return out;
+}
+
+void write_run_netcdf_outputs(OutputFolder& folder, const CaseSpec& c, const RunResult& r,
+                              const StandardsReport* standards, CfFileFormat format) {
+  for (const auto& [name, table] : run_netcdf_tables(c, r, standards)) {
+    write_cf_file(folder.staged(name).string(), table(), format);
+    folder.adopt(name);
+  }
 }
 
 }  // namespace lidbox

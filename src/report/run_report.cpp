@@ -1,20 +1,24 @@
 #include "lidbox/report/run_report.hpp"
 
 #include <algorithm>
+#include <atomic>
 #include <cmath>
 #include <cstdio>
+#include <exception>
+#include <functional>
+#include <mutex>
 #include <sstream>
+#include <thread>
 
-#include "lidbox/base/caution.hpp"
 #include "lidbox/analysis/run_standards.hpp"
+#include "lidbox/base/caution.hpp"
+#include "lidbox/base/error.hpp"
+#include "lidbox/base/work_meter.hpp"
+#include "lidbox/report/run_netcdf.hpp"
 
 namespace lidbox {
 
 namespace {
-
-std::string local_label(const HourRecord& h, UtcSeconds t) {
-  return format_with_offset(t, h.civil_offset_s);
-}
 
 std::string part_name(const CaseSpec& c, std::size_t j) {
   if (j == 0) return "background";
@@ -28,66 +32,120 @@ double in_unit(const PollutantSpec& p, double g_m3) { return g_m3 / p.unit.to_g_
 
 }  // namespace
 
-std::string render_hourly_csv(const CaseSpec& c, const RunResult& r) {
-  std::ostringstream o;
-  o << "period_start_utc,period_end_utc,period_start_local,period_end_local,mixing_height [m],"
-       "wind_speed [m/s],wind_from [deg],ventilation_coefficient [m2/s],flushing_time [h],"
-       "residual_layer_top [m],met_filled,calm_floor_applied,lid_floor_applied,substeps";
+void write_hourly_csv(TextFile& f, const CaseSpec& c, const RunResult& r) {
+  f.text(
+      "period_start_utc,period_end_utc,period_start_local,period_end_local,mixing_height [m],"
+      "wind_speed [m/s],wind_from [deg],ventilation_coefficient [m2/s],flushing_time [h],"
+      "residual_layer_top [m],met_filled,calm_floor_applied,lid_floor_applied,substeps");
   for (const auto& p : c.pollutants) {
     const std::string u = " [" + unit_of(p) + "]";
-    o << ',' << p.name << "_hour_mean" << u << ',' << p.name << "_end_of_hour" << u << ','
-      << p.name << "_residual_end_of_hour" << u;
-    for (std::size_t j = 0; j < r.n_parts; ++j) o << ',' << p.name << "_part_" << part_name(c, j) << u;
+    f.ch(',').text(p.name).text("_hour_mean").text(u).ch(',').text(p.name).text("_end_of_hour");
+    f.text(u).ch(',').text(p.name).text("_residual_end_of_hour").text(u);
+    for (std::size_t j = 0; j < r.n_parts; ++j) {
+      f.ch(',').text(p.name).text("_part_").text(part_name(c, j)).text(u);
+    }
   }
-  o << '\n';
-  for (std::size_t i = 0; i < r.hours.size(); ++i) {
+  f.ch('\n');
+  const std::size_t n = r.hours.size();
+  for (std::size_t i = 0; i < n; ++i) {
     const HourRecord& h = r.hours[i];
     const UtcSeconds end = h.start_utc + kSecondsPerHour;
-    o << format_utc(h.start_utc) << ',' << format_utc(end) << ',' << local_label(h, h.start_utc) << ','
-      << format_with_offset(end, c.zone.civil_offset_s(end)) << ',' << format_number(h.mixing_height_m) << ','
-      << format_number(h.wind_speed_m_s, 5) << ',' << format_number(h.wind_from_deg, 5) << ','
-      << format_number(h.ventilation_m2_s, 6) << ',' << format_number(h.flushing_time_h, 5) << ','
-      << format_number(h.residual_top_m) << ',' << (h.filled ? 1 : 0) << ',' << (h.calm_floor ? 1 : 0)
-      << ',' << (h.lid_floor ? 1 : 0) << ',' << h.substeps;
+    // The offset at the end of hour i is the one at the start of hour i + 1.
+    const int end_offset = i + 1 < n ? r.hours[i + 1].civil_offset_s : c.zone.civil_offset_s(end);
+    f.utc(h.start_utc).ch(',').utc(end).ch(',').with_offset(h.start_utc, h.civil_offset_s).ch(',');
+    f.with_offset(end, end_offset).ch(',').number(h.mixing_height_m).ch(',');
+    f.number(h.wind_speed_m_s, 5).ch(',').number(h.wind_from_deg, 5).ch(',');
+    f.number(h.ventilation_m2_s, 6).ch(',').number(h.flushing_time_h, 5).ch(',');
+    f.number(h.residual_top_m).ch(',').ch(h.filled ? '1' : '0').ch(',');
+    f.ch(h.calm_floor ? '1' : '0').ch(',').ch(h.lid_floor ? '1' : '0').ch(',').integer(h.substeps);
     for (std::size_t p = 0; p < r.n_pollutants; ++p) {
       const PollutantSpec& ps = c.pollutants[p];
-      o << ',' << format_number(in_unit(ps, r.total(i, p))) << ','
-        << format_number(in_unit(ps, r.end_mixed(i, p))) << ','
-        << format_number(in_unit(ps, r.end_residual(i, p)));
-      for (std::size_t j = 0; j < r.n_parts; ++j) o << ',' << format_number(in_unit(ps, r.mean(i, p, j)));
+      f.ch(',').number(in_unit(ps, r.total(i, p))).ch(',');
+      f.number(in_unit(ps, r.end_mixed(i, p))).ch(',').number(in_unit(ps, r.end_residual(i, p)));
+      for (std::size_t j = 0; j < r.n_parts; ++j) f.ch(',').number(in_unit(ps, r.mean(i, p, j)));
     }
-    o << '\n';
+    f.ch('\n');
   }
-  return o.str();
 }
 
-std::string render_budget_csv(const CaseSpec& c, const RunResult& r) {
-  const bool rl = c.engine.residual_layer;
+namespace {
+
+const char* kBudgetHeader =
+    "period_start_utc,pollutant,emitted [g/h],advected_in [g/h],advected_out [g/h],reacted [g/h],"
+    "deposited [g/h],entrained_from_residual [g/h],entrained_from_free_troposphere [g/h],"
+    "detrained [g/h],residual_reacted [g/h],residual_advected_in [g/h],"
+    "residual_advected_out [g/h],vented_aloft [g/h],mixed_layer_mass [g],residual_layer_mass [g],"
+    "cumulative_closure [g]\n";
+
+// The rows of hour i, one per pollutant; closure_g_m2[p] is the cumulative closure after it.
+void write_budget_rows(TextFile& f, const CaseSpec& c, const RunResult& r, std::size_t i,
+                       const double* closure_g_m2) {
   const double A = c.footprint.area_m2();
-  std::ostringstream o;
-  o << "period_start_utc,pollutant,emitted [g/h],advected_in [g/h],advected_out [g/h],reacted "
-       "[g/h],"
-       "deposited [g/h],entrained_from_residual [g/h],entrained_from_free_troposphere [g/h],"
-       "detrained [g/h],residual_reacted [g/h],residual_advected_in [g/h],"
-       "residual_advected_out [g/h],vented_aloft [g/h],mixed_layer_mass [g],residual_layer_mass "
-       "[g],"
-       "cumulative_closure [g]\n";
+  for (std::size_t p = 0; p < r.n_pollutants; ++p) {
+    const BudgetTerms& b = r.budget_of(i, p);
+    f.utc(r.hours[i].start_utc).ch(',').text(c.pollutants[p].name);
+    for (double v : {b.emitted, b.advected_in, b.advected_out, b.reacted, b.deposited,
+                     b.entrained_from_residual, b.entrained_from_free_troposphere, b.detrained,
+                     b.residual_reacted, b.residual_advected_in, b.residual_advected_out,
+                     b.vented_aloft, r.mixed_mass(i, p), r.residual_mass(i, p)}) {
+      f.ch(',').number(v * A, 10);
+    }
+    f.ch(',').scientific(closure_g_m2[p] * A, 3).ch('\n');
+  }
+}
+
+}  // namespace
+
+void write_budget_csv(TextFile& f, const CaseSpec& c, const RunResult& r) {
+  const std::vector<double> closure = r.closure_series_g_m2(c.engine.residual_layer);
+  f.text(kBudgetHeader);
   for (std::size_t i = 0; i < r.hours.size(); ++i) {
-    for (std::size_t p = 0; p < r.n_pollutants; ++p) {
-      const BudgetTerms& b = r.budget_of(i, p);
-      o << format_utc(r.hours[i].start_utc) << ',' << c.pollutants[p].name;
-      for (double v : {b.emitted, b.advected_in, b.advected_out, b.reacted, b.deposited,
-                       b.entrained_from_residual, b.entrained_from_free_troposphere, b.detrained,
-                       b.residual_reacted, b.residual_advected_in, b.residual_advected_out,
-                       b.vented_aloft, r.mixed_mass(i, p), r.residual_mass(i, p)}) {
-        o << ',' << format_number(v * A, 10);
-      }
-      char buf[32];
-      std::snprintf(buf, sizeof buf, "%.3e", r.closure_g_m2(i, p, rl) * A);
-      o << ',' << buf << '\n';
+    write_budget_rows(f, c, r, i, closure.data() + i * r.n_pollutants);
+  }
+}
+
+BudgetStream::BudgetStream(OutputFolder& folder, const CaseSpec& c, bool netcdf,
+                           CfFileFormat format)
+    : folder_(folder), c_(c), netcdf_(netcdf), format_(format) {}
+
+BudgetStream::~BudgetStream() = default;
+
+void BudgetStream::hour(const RunResult& r, std::size_t i) {
+  const std::size_t P = r.n_pollutants;
+  if (i == 0) {
+    csv_ = std::make_unique<TextFile>(folder_, "budget.csv");
+    csv_->text(kBudgetHeader);
+    closure_.assign(P, 0.0);
+    if (netcdf_) {
+      nc_ = std::make_unique<CfStreamWriter>(folder_.staged("budget.nc").string(),
+                                             budget_cf_layout(c_, r), format_);
+      per_hour_ = budget_values_per_hour(r);
+      block_.assign(per_hour_ * kBlockHours, 0.0);
+      row_.assign(per_hour_, 0.0);
     }
   }
-  return o.str();
+  for (std::size_t p = 0; p < P; ++p) closure_[p] = r.closure_latest_g_m2(i, p);
+  write_budget_rows(*csv_, c_, r, i, closure_.data());
+  if (nc_) {
+    budget_hour_values(c_, r, i, closure_.data(), row_.data());
+    const std::size_t k = i - block_first_;
+    for (std::size_t v = 0; v < per_hour_; ++v) block_[v * kBlockHours + k] = row_[v];
+    if (k + 1 == kBlockHours || i + 1 == r.hours.size()) {
+      for (std::size_t v = 0; v < per_hour_; ++v) {
+        nc_->put(v, block_first_, block_.data() + v * kBlockHours, k + 1);
+      }
+      block_first_ = i + 1;
+    }
+  }
+}
+
+void BudgetStream::close() {
+  if (!csv_) throw InternalError("a budget stream closed before its first hour");
+  csv_->close();
+  if (nc_) {
+    nc_->close();
+    folder_.adopt("budget.nc");
+  }
 }
 
 std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunResult& r,
@@ -292,16 +350,80 @@ std::string render_chart_svg(const CaseSpec& c, const RunResult& r) {
   return o.str();
 }
 
-std::vector<OutputFile> render_run_outputs(const CaseSpec& c, const MetSeries& met, const RunResult& r,
-                                           const StandardsReport* standards) {
-  std::vector<OutputFile> files = {{"hourly.csv", render_hourly_csv(c, r)},
-                                   {"budget.csv", render_budget_csv(c, r)},
-                                   {"summary.txt", render_summary(c, met, r, standards)},
-                                   {"chart.svg", render_chart_svg(c, r)}};
-  if (standards) {
-    for (auto& f : render_standards_report(*standards)) files.push_back(std::move(f));
+namespace {
+
+// Runs the tasks on two threads (the machine's cores), each task whole on one thread; the first
+// error is raised here after both threads are done.
+void run_on_two_threads(const std::vector<std::function<void()>>& tasks) {
+  std::atomic<std::size_t> next{0};
+  std::exception_ptr error;
+  std::mutex error_mutex;
+  const auto worker = [&] {
+    for (std::size_t k = next++; k < tasks.size(); k = next++) {
+      try {
+        tasks[k]();
+      } catch (...) {
+        const std::lock_guard<std::mutex> lock(error_mutex);
+        if (!error) error = std::current_exception();
+        next = tasks.size();
+      }
+    }
+    work_meter::merge_thread();
+  };
+  std::thread other(worker);
+  worker();
+  other.join();
+  if (error) std::rethrow_exception(error);
+}
+
+}  // namespace
+
+std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
+                              const RunResult& r, const StandardsReport* standards, bool netcdf,
+                              CfFileFormat format) {
+  std::string summary = render_summary(c, met, r, standards);
+  std::vector<std::function<void()>> tasks;
+  // NetCDF-C is not thread-safe: its files are one task. The longest tasks go first.
+  if (netcdf)
+    tasks.emplace_back([&] { write_run_netcdf_outputs(folder, c, r, standards, format); });
+  tasks.emplace_back([&] {
+    TextFile f(folder, "hourly.csv");
+    write_hourly_csv(f, c, r);
+    f.close();
+  });
+  if (!r.budget_streamed) {
+    tasks.emplace_back([&] {
+      TextFile f(folder, "budget.csv");
+      write_budget_csv(f, c, r);
+      f.close();
+    });
   }
-  return files;
+  tasks.emplace_back([&] { folder.write_whole("chart.svg", render_chart_svg(c, r)); });
+  tasks.emplace_back([&] {
+    if (standards) {
+      for (const auto& f : render_standards_report(*standards))
+        folder.write_whole(f.name, f.content);
+    }
+  });
+  run_on_two_threads(tasks);
+  return summary;
+}
+
+RunWritten run_and_write(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
+                         const RunWriteOptions& options) {
+  BudgetStream budget(folder, c, options.netcdf, options.format);
+  RunStreaming streaming;
+  streaming.keep_budget = false;
+  streaming.on_hour = [&budget](const RunResult& r, std::size_t i) { budget.hour(r, i); };
+  RunWritten out;
+  out.result = run_case(c, met, options.progress, streaming);
+  budget.close();
+  if (options.after_run) options.after_run();
+  out.standards = run_standards(c, out.result, options.issue_time);
+  out.summary =
+      write_run_outputs(folder, c, met, out.result, out.standards ? &*out.standards : nullptr,
+                        options.netcdf, options.format);
+  return out;
 }
 
 }  // namespace lidbox

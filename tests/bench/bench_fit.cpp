@@ -30,7 +30,8 @@ int main(int argc, char** argv) {
   const std::size_t p = d.columns.size();
   // Column series like the parts of a run: each sector has its own random hour-of-day and
   // day-of-week clock, all divided by one varying dilution.
-  std::vector<std::vector<double>> hour_w(sectors, std::vector<double>(24)), day_w(sectors, std::vector<double>(7));
+  std::vector<std::vector<double>> hour_w(sectors, std::vector<double>(24)),
+      day_w(sectors, std::vector<double>(7));
   for (std::size_t s = 0; s < sectors; ++s) {
     for (double& w : hour_w[s]) w = 0.2 + 2.0 * u(rng);
     for (double& w : day_w[s]) w = 0.5 + u(rng);
@@ -38,7 +39,8 @@ int main(int argc, char** argv) {
   d.column_series.assign(p, std::vector<double>(T));
   for (std::size_t i = 0; i < T; ++i) {
     const std::size_t h = i % 24, day = (i / 24) % 7;
-    const double dilution = 1.2 + std::sin(2 * M_PI * (static_cast<double>(h) - 4) / 24) + 0.5 * u(rng);
+    const double dilution =
+        1.2 + std::sin(2 * M_PI * (static_cast<double>(h) - 4) / 24) + 0.5 * u(rng);
     d.column_series[0][i] = 5.0 + 2.0 * std::sin(2 * M_PI * static_cast<double>(i) / 2000.0);
     for (std::size_t s = 0; s < sectors; ++s) {
       d.column_series[s + 1][i] = 4.0 * hour_w[s][h] * day_w[s][day] / dilution;

@@ -13,16 +13,16 @@
 #include <string>
 #include <vector>
 
+#include "lidbox/base/concentration_units.hpp"
+#include "lidbox/base/time.hpp"
 #include "lidbox/engine/box_model.hpp"
 #include "lidbox/engine/cut_request.hpp"
 #include "lidbox/engine/emission_scenario.hpp"
-#include "lidbox/engine/ensemble_spec.hpp"
-#include "lidbox/base/concentration_units.hpp"
 #include "lidbox/engine/emissions.hpp"
+#include "lidbox/engine/ensemble_spec.hpp"
 #include "lidbox/engine/footprint.hpp"
 #include "lidbox/met/met_series.hpp"
 #include "lidbox/met/netcdf_met.hpp"
-#include "lidbox/base/time.hpp"
 
 namespace lidbox {
 
@@ -85,8 +85,8 @@ struct StandardsSpec {
 // What [diagnostics] names; the diagnostics room loads and applies it (daily_diagnostics.hpp).
 struct DiagnosticsSpec {
   std::string ventilation_table = "usfs-vcis";  // id or path; "" for none
-  std::vector<std::string> schemes;              // ids or paths (resolved against the case)
-  std::map<std::string, std::string> fields;     // field -> NetCDF variable (NetCDF met only)
+  std::vector<std::string> schemes;             // ids or paths (resolved against the case)
+  std::map<std::string, std::string> fields;    // field -> NetCDF variable (NetCDF met only)
 };
 
 // The diagnostics fields a met file may carry beside the mixing height and wind (the names of

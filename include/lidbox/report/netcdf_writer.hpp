@@ -3,8 +3,9 @@
 // as in Example H.4).
 //
 // Layout written:
-//   dimensions  time (unlimited), nv = 2 (with periods), name_strlen (with a station name)
-//   time(time)          double, "hours since <first time> +00:00", calendar "standard",
+//   dimensions  time (fixed, the number of rows), nv = 2 (with periods), name_strlen (with a
+//   station name) time(time)          double, "hours since <first time> +00:00", calendar
+//   "standard",
 //                       units_metadata "leap_seconds: none", axis T, standard_name time
 //   time_bnds(time, nv) when the rows are periods (hour means, days): [start, end]
 //   lat, lon, alt       scalars, when given; station_name(name_strlen) with cf_role timeseries_id
@@ -18,8 +19,11 @@
 // [start, end) and the time variable's comment says so. Instantaneous rows (period_s = 0) are
 // stamped at their instant and have no bounds.
 //
+// Every variable along time is stored contiguously (NetCDF-4): the whole series is one block.
+//
 // Global attributes: Conventions "CF-1.12", featureType "timeSeries", title, source
-// "lidbox <version>", history "<UTC now> lidbox <version>: <table.history>", caution
+// "lidbox <version>", history "<UTC now> lidbox <version>: <table.history>" (now is
+// SOURCE_DATE_EPOCH when that is set, for byte-reproducible files), caution
 // (kScreeningCaution), then the caller's (case name, rule sets, ...).
 //
 // The file is written atomically: to a hidden temporary name in the target directory, renamed
@@ -75,6 +79,33 @@ enum class CfFileFormat {
 
 void write_cf_timeseries(const std::string& path, const CfTable& table,
                          CfFileFormat format = CfFileFormat::netcdf4_classic);
+
+// The file written at `path` directly, replacing what is there (no temporary: for a folder that
+// is published as a whole, output_folder.hpp). Failures as above.
+void write_cf_file(const std::string& path, const CfTable& table,
+                   CfFileFormat format = CfFileFormat::netcdf4_classic);
+
+// The same file written variable block by variable block, for tables too long to hold: `layout`
+// gives the rows (time_utc) and the variables' descriptions, with no values. Every row of every
+// variable must be put before close(). Failures as above; an unclosed file is closed by the
+// destructor and left to its folder's cleanup.
+class CfStreamWriter {
+ public:
+  CfStreamWriter(std::string path, CfTable layout,
+                 CfFileFormat format = CfFileFormat::netcdf4_classic);
+  ~CfStreamWriter();
+  CfStreamWriter(const CfStreamWriter&) = delete;
+  CfStreamWriter& operator=(const CfStreamWriter&) = delete;
+  // Rows [first_row, first_row + n) of variable k (its index in layout.vars); NaN -> _FillValue.
+  void put(std::size_t k, std::size_t first_row, const double* values, std::size_t n);
+  void close();
+
+ private:
+  std::string path_;
+  CfTable layout_;
+  int nc_ = -1;
+  std::vector<int> ids_;
+};
 
 // The same file as bytes in memory (NetCDF-C in-memory files), for a caller that writes a set of
 // outputs all-or-nothing itself (atomic_file.hpp's OutputFile::content takes them as they are).

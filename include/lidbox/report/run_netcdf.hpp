@@ -28,6 +28,7 @@
 #include <vector>
 
 #include "lidbox/base/atomic_file.hpp"
+#include "lidbox/base/output_folder.hpp"
 #include "lidbox/engine/case_file.hpp"
 #include "lidbox/engine/run.hpp"
 #include "lidbox/report/netcdf_writer.hpp"
@@ -37,6 +38,13 @@ namespace lidbox {
 
 CfTable hourly_cf_table(const CaseSpec& c, const RunResult& r);
 CfTable budget_cf_table(const CaseSpec& c, const RunResult& r);
+// budget.nc hour by hour (a run that streams its budget): the table without values, and one
+// hour's values in the order of its variables (per pollutant: the lines, the two masses, the
+// cumulative closure, whose value per pollutant [g m-2] the caller gives).
+CfTable budget_cf_layout(const CaseSpec& c, const RunResult& r);
+std::size_t budget_values_per_hour(const RunResult& r);
+void budget_hour_values(const CaseSpec& c, const RunResult& r, std::size_t hour,
+                        const double* closure_g_m2, double* out);
 
 // InternalError when the report has no daily rows.
 CfTable daily_statistics_cf_table(const CaseSpec& c, const StandardsReport& report);
@@ -47,12 +55,17 @@ CfTable daily_statistics_cf_table(const CaseSpec& c, const StandardsReport& repo
 // and P_valid_hours_<k>h. Written as rolling_<k>h_min<m>.nc.
 std::vector<CfTable> running_means_cf_tables(const CaseSpec& c, const StandardsReport& report);
 
-// {"hourly.nc", "budget.nc"}, with a report that has daily rows "daily.nc", and one
-// "rolling_<k>h.nc" per requested window, rendered in memory to join render_run_outputs() in one
-// atomic set.
+// {"hourly.nc", "budget.nc"} (budget.nc only when the run kept its budget), with a report that has
+// daily rows "daily.nc", and one "rolling_<k>h.nc" per requested window, rendered in memory (a run
+// writes them with write_run_netcdf_outputs).
 std::vector<OutputFile> render_run_netcdf_outputs(
     const CaseSpec& c, const RunResult& r, const StandardsReport* standards = nullptr,
     CfFileFormat format = CfFileFormat::netcdf4_classic);
+// The same files written straight into a folder that is published as a whole, one table in
+// memory at a time.
+void write_run_netcdf_outputs(OutputFolder& folder, const CaseSpec& c, const RunResult& r,
+                              const StandardsReport* standards,
+                              CfFileFormat format = CfFileFormat::netcdf4_classic);
 
 // The CF standard name of a pollutant's concentration in its reporting unit, "" when lidbox
 // does not know the species. Names are matched loosely: "PM2.5", "PM25", "pm2p5"; "CO"; "NO2";
