@@ -113,6 +113,9 @@ struct CaseSpec {
   std::string output_directory;         // default outputs/<name>
   bool netcdf_output = false;           // also write hourly.nc, budget.nc, daily.nc
   bool invented = false;                // the case says its scenario is invented
+  // Where the case's [grid] table is ("file:line: (top level) grid"), "" without one: a grid
+  // case is read by grid/grid_case.hpp and run by `lidbox grid`, never as a point.
+  std::string grid_table;
 };
 
 // Reads and checks a case file. Relative paths inside it are resolved against its folder.
