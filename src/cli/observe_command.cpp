@@ -1,5 +1,6 @@
 #include "observe_command.hpp"
 
+#include <cmath>
 #include <iostream>
 #include <memory>
 #include <sstream>
@@ -83,6 +84,12 @@ void run(const ObserveArgs& a) {
   opt.input_label = "observations " + a.observations;
   opt.file_prefix =
       a.prefix.empty() ? std::filesystem::path(a.observations).stem().string() + "_" : a.prefix;
+  for (const auto& [pollutant, limits] : obs.below_detection) {
+    std::size_t n = 0;
+    for (double l : limits) n += std::isnan(l) ? 0 : 1;
+    std::cerr << "lidbox observe: note: " << n << " " << pollutant
+              << " values below detection (\"<L\") are missing values in these tables\n";
+  }
   const auto report = compute_standards_report(obs.series, std::move(opt));
   const auto written = write_standards_report(report, a.out_dir);
   for (const auto& p : written) std::cout << "wrote " << p.string() << "\n";

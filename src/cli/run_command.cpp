@@ -13,6 +13,7 @@
 #include "lidbox/report/diagnostics_report.hpp"
 #include "lidbox/report/run_netcdf.hpp"
 #include "lidbox/report/run_report.hpp"
+#include "lidbox/report/ensemble_report.hpp"
 #include "progress.hpp"
 
 namespace lidbox::cli {
@@ -25,6 +26,13 @@ struct RunOptions {
   bool quiet = false;
   bool netcdf = false;
 };
+// Adds a section at the end of one of the rendered files (the summary).
+void append_section(std::vector<OutputFile>& files, const std::string& name,
+                    const std::string& text) {
+  for (auto& f : files) {
+    if (f.name == name) f.content += text;
+  }
+}
 }  // namespace
 
 void add_run_command(CLI::App& app, int& exit_code) {
@@ -63,6 +71,14 @@ void add_run_command(CLI::App& app, int& exit_code) {
       for (auto& f : render_run_netcdf_outputs(c, r, standards ? &*standards : nullptr)) {
         files.push_back(std::move(f));
       }
+    }
+    if (c.ensemble) {
+      const auto ens = forecast_ensemble(
+          c, met, standards ? standards->options.rule_sets : std::vector<RuleSet>{},
+          [&progress](double f) { progress.update(f, "ensemble"); });
+      progress.finish();
+      append_section(files, "summary.txt", render_ensemble_summary(c, ens));
+      for (auto& f : render_ensemble_outputs(c, ens)) files.push_back(std::move(f));
     }
     const std::string dir = opt->output_dir.empty() ? c.output_directory : opt->output_dir;
     const auto written = write_output_files(dir, files);

@@ -589,12 +589,21 @@ void read_output(const TomlTable& top, CaseSpec& c) {
   c.netcdf_output = r->optional_bool("netcdf").value_or(false);
 }
 
+// [scenario] and [ensemble]: their readers live with their concepts.
+void read_forecast_tables(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
+  std::vector<std::string> sectors;
+  for (const auto& s : c.sectors) sectors.push_back(s.name);
+  c.scenario = read_emission_scenario(top, sectors, c.zone);
+  c.ensemble = read_ensemble_spec(top, base_dir);
+}
+
 }  // namespace
 
 CaseSpec parse_case(const std::string& text, const std::string& file, const std::string& base_dir) {
   const TomlDocument doc(text, file);
   const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
-                            "pollutants", "sectors", "standards", "diagnostics", "grid", "output"});
+                            "pollutants", "sectors", "standards", "diagnostics", "grid", "output",
+                            "scenario", "ensemble"});
   CaseSpec c;
   c.file = file;
   read_top_level(top, c);
@@ -607,6 +616,7 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   read_diagnostics(top, base_dir, c);
   if (top.has("grid")) c.grid_table = top.where("grid");  // the grid room reads it (grid_case.hpp)
   read_output(top, c);
+  read_forecast_tables(top, base_dir, c);
   return c;
 }
 

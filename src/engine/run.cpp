@@ -342,6 +342,8 @@ RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& pr
     R.initial_mixed_mass_g_m2[p] = engine.mixed_mass(state, p);
     R.initial_residual_mass_g_m2[p] = engine.residual_mass(state, p);
   }
+  // After the spin-up, which always sees the case's own emissions: a scenario changes the run.
+  if (c.scenario) apply_emission_scenario(*c.scenario, R.hours.front().start_utc, F);
   const std::size_t report_every = std::max<std::size_t>(1, n / 100);
   for (std::size_t i = 0; i < n; ++i) {
     engine.step_hour(state, F, i, hr);

@@ -165,16 +165,21 @@ Pick pick_station(const File& f, const Stations& st, const NetcdfMetOptions& opt
 }
 
 // By the coordinate's value, or by 0-based index when the dimension has no coordinate.
+std::vector<long long> member_coordinate_values(const File& f, int d, const Var* coord) {
+  std::vector<long long> values;
+  if (coord) {
+    for (double x : f.read_all(*coord)) values.push_back(std::llround(x));
+  } else {
+    for (std::size_t i = 0; i < f.dim_len(d); ++i) values.push_back(static_cast<long long>(i));
+  }
+  return values;
+}
+
 Pick pick_member(const File& f, const std::string& where, int d, const Var* coord,
                  const NetcdfMetOptions& opt) {
   const std::size_t len = f.dim_len(d);
-  std::vector<long long> values;
   const bool has_coord = coord != nullptr;
-  if (has_coord) {
-    for (double x : f.read_all(*coord)) values.push_back(std::llround(x));
-  } else {
-    for (std::size_t i = 0; i < len; ++i) values.push_back(static_cast<long long>(i));
-  }
+  const std::vector<long long> values = member_coordinate_values(f, d, coord);
   std::size_t pick = 0;
   if (opt.member) {
     auto it = std::find(values.begin(), values.end(), *opt.member);
@@ -502,6 +507,16 @@ void refuse_ragged(const File& f) {
       }
     }
   }
+}
+
+std::vector<long long> member_values(const File& f, const Var& v) {
+  for (int d : v.dims) {
+    if (!is_member_dim(f, d)) continue;
+    const Var* coord = f.find(f.dim_name(d));
+    if (coord && !is_coordinate(f, *coord)) coord = nullptr;
+    return member_coordinate_values(f, d, coord);
+  }
+  return {};
 }
 
 Selection select_layout(const File& f, const Var& v, const NetcdfMetOptions& opt,

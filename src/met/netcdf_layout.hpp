@@ -54,6 +54,10 @@ void refuse_ragged(const File& f);
 Selection select_layout(const File& f, const Var& v, const NetcdfMetOptions& opt,
                         const Var* mapped_time);
 
+// The values of v's member (realization) dimension: its coordinate's values, or 0-based indices
+// when it has no coordinate variable; empty when v has no member dimension.
+std::vector<long long> member_values(const File& f, const Var& v);
+
 // One variable, read for its selected cells: cells[cell][record], unpacked and converted.
 struct CellValues {
   std::vector<std::vector<double>> cells;

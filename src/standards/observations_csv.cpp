@@ -68,6 +68,7 @@ std::vector<Column> read_header(const std::vector<std::string>& cells, std::stri
 struct Rows {
   std::vector<Column> columns;
   std::vector<std::vector<double>> values;
+  std::vector<std::vector<double>> detection_limits;  // per column, "<L" cells; empty if none
   UtcSeconds first = 0;
   UtcSeconds previous = 0;
   std::size_t previous_line = 0;
@@ -105,6 +106,19 @@ void read_values(Rows& rows, const std::vector<std::string>& cells, std::size_t 
     v.resize(index, kMissing);
     const std::string_view cell = cells[c + 1];
     if (cell.empty()) {
+      v.push_back(kMissing);
+      continue;
+    }
+    if (cell.front() == '<') {
+      double limit = 0.0;
+      if (!parse_double(trim(cell.substr(1)), limit) || limit < 0.0) {
+        throw InputError(
+            where + ": column \"" + rows.columns[c].pollutant + " [" + rows.columns[c].unit + "]\"",
+            "value \"" + std::string(cell) + "\"", "a detection limit \"<L\" with a number L >= 0");
+      }
+      std::vector<double>& dl = rows.detection_limits[c];
+      dl.resize(index, kMissing);
+      dl.push_back(limit);
       v.push_back(kMissing);
       continue;
     }
@@ -165,6 +179,7 @@ Observations parse_observations_csv(std::string_view text, std::string_view path
       rows.emplace();
       rows->columns = read_header(cells, line, where);
       rows->values.resize(rows->columns.size());
+      rows->detection_limits.resize(rows->columns.size());
     }
   }
   if (!rows) throw InputError(path, "no header line", "\"time\" followed by pollutant columns");
@@ -173,6 +188,10 @@ Observations parse_observations_csv(std::string_view text, std::string_view path
   obs.path = path;
   obs.rows = rows->count;
   for (std::size_t c = 0; c < rows->columns.size(); ++c) {
+    if (!rows->detection_limits[c].empty()) {
+      rows->detection_limits[c].resize(rows->values[c].size(), kMissing);
+      obs.below_detection[rows->columns[c].pollutant] = std::move(rows->detection_limits[c]);
+    }
     obs.series[rows->columns[c].pollutant] =
         HourlySeries{rows->first, std::move(rows->values[c]), rows->columns[c].unit};
   }

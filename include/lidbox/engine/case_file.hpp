@@ -14,6 +14,8 @@
 #include <vector>
 
 #include "lidbox/engine/box_model.hpp"
+#include "lidbox/engine/emission_scenario.hpp"
+#include "lidbox/engine/ensemble_spec.hpp"
 #include "lidbox/base/concentration_units.hpp"
 #include "lidbox/engine/emissions.hpp"
 #include "lidbox/engine/footprint.hpp"
@@ -113,6 +115,8 @@ struct CaseSpec {
   std::string output_directory;         // default outputs/<name>
   bool netcdf_output = false;           // also write hourly.nc, budget.nc, daily.nc
   bool invented = false;                // the case says its scenario is invented
+  std::optional<EmissionScenario> scenario;  // [scenario]: sectors scaled from a start time
+  std::optional<EnsembleSpec> ensemble;      // [ensemble]: met members run beside [met]
   // Where the case's [grid] table is ("file:line: (top level) grid"), "" without one: a grid
   // case is read by grid/grid_case.hpp and run by `lidbox grid`, never as a point.
   std::string grid_table;

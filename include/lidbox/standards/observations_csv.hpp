@@ -14,9 +14,13 @@
 //   "<file>:<line>: ...; expected ...".
 // * Column names are pollutants (see pollutant.hpp, e.g. "PM2.5", "pm25", "O3") with the unit in
 //   brackets (concentration_units.hpp); each series keeps the canonical unit ("ug m-3", "ppb").
+// * A cell "<L" (L a number >= 0 in the column's unit) is a value below the detection limit L:
+//   the series has a missing value there (the averages of the standards do not invent one) and
+//   `below_detection` keeps L, so that a caller can substitute and say so (monitor_pairing.hpp).
 #pragma once
 
 #include <filesystem>
+#include <map>
 #include <string>
 #include <string_view>
 
@@ -26,6 +30,8 @@ namespace lidbox {
 
 struct Observations {
   NamedSeries series;  // canonical pollutant name -> hourly series
+  // Pollutants with "<L" cells -> L at those hours, NaN elsewhere; as long as the series.
+  std::map<std::string, std::vector<double>> below_detection;
   std::string path;
   std::size_t rows = 0;
 };

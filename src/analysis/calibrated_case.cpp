@@ -1,0 +1,207 @@
+#include "lidbox/analysis/calibrated_case.hpp"
+
+#include <cmath>
+#include <cstdlib>
+#include <map>
+#include <sstream>
+
+#include "lidbox/base/error.hpp"
+#include "lidbox/base/text.hpp"
+#include "lidbox/base/toml_table.hpp"
+
+namespace lidbox {
+
+namespace {
+
+// One value to rewrite: the string node and its new text.
+struct Edit {
+  std::size_t line = 0;  // 1-based
+  std::size_t column = 0;
+  std::string old_token;  // the quoted string as it stands in the file
+  std::string new_token;
+  std::string what;  // for the comment and the change list
+};
+
+std::string quoted(const std::string& s) {
+  return "\"" + s + "\"";
+}
+
+// "12 kg/h" scaled by x -> "19.32 kg/h" (7 significant digits, the unit as written).
+std::string scaled_quantity(const std::string& text, double x, const std::string& where) {
+  const auto q = split_quantity(text);
+  if (!q) throw InternalError(where + ": \"" + text + "\" is not a quantity");
+  return format_number(q->number * x, 7) + (q->unit.empty() ? "" : " " + q->unit);
+}
+
+void scale_string_node(const toml::node* n, double x, const std::string& what,
+                       std::vector<Edit>& edits) {
+  if (!n || !n->is_string()) return;
+  const std::string old = n->value<std::string>().value_or("");
+  Edit e;
+  e.line = n->source().begin.line;
+  e.column = n->source().begin.column;
+  e.old_token = quoted(old);
+  e.new_token = quoted(scaled_quantity(old, x, what));
+  e.what = what + " " + old + " -> " + scaled_quantity(old, x, what);
+  edits.push_back(e);
+}
+
+void path_node(const toml::node* n, const std::filesystem::path& case_dir,
+               const std::filesystem::path& out_dir, const std::string& what,
+               std::vector<Edit>& edits) {
+  if (!n || !n->is_string()) return;
+  const std::string old = n->value<std::string>().value_or("");
+  const std::filesystem::path p(old);
+  if (p.is_absolute()) return;
+  const std::filesystem::path target = std::filesystem::absolute(case_dir / p).lexically_normal();
+  std::filesystem::path rel =
+      target.lexically_relative(std::filesystem::absolute(out_dir).lexically_normal());
+  if (rel.empty()) rel = target;
+  if (rel.string() == old) return;
+  Edit e;
+  e.line = n->source().begin.line;
+  e.column = n->source().begin.column;
+  e.old_token = quoted(old);
+  e.new_token = quoted(rel.generic_string());
+  e.what = what + " path made relative to this file's folder (was \"" + old + "\")";
+  edits.push_back(e);
+}
+
+std::string scale_text(double x) {
+  return "x" + format_number(x, 6);
+}
+
+}  // namespace
+
+CalibratedCase calibrated_case(const CaseSpec& c, const std::string& case_text,
+                               const SectorFitReport& fit, const std::string& fit_label,
+                               const std::filesystem::path& output_dir) {
+  CalibratedCase out;
+  const TomlDocument doc(case_text, c.file);
+  const toml::table& root = doc.root();
+  const std::size_t p = [&] {
+    for (std::size_t i = 0; i < c.pollutants.size(); ++i) {
+      const std::string& n = c.pollutants[i].name;
+      if (n == fit.pollutant || canonical_pollutant(n) == fit.pollutant) return i;
+    }
+    throw InternalError("calibrated_case: pollutant " + fit.pollutant + " not in the case");
+  }();
+  const std::string pname = c.pollutants[p].name;
+  std::vector<Edit> edits;
+  for (const FitEstimate& e : fit.estimates) {
+    if (e.name == "offset") {
+      out.notes.push_back("the fitted offset (" + format_number(e.value, 5) + " " + fit.unit +
+                          ") is not a case-file quantity and is not written");
+      continue;
+    }
+    if (e.name == "background") {
+      const toml::node* pt = root["pollutants"][pname].node();
+      const toml::table* t = pt ? pt->as_table() : nullptr;
+      if (!t) continue;
+      const toml::node* bg = t->get("background");
+      if (bg && bg->is_string()) {
+        scale_string_node(bg, e.value, "[pollutants." + pname + "] background", edits);
+      } else if (bg && bg->is_table()) {
+        const toml::table& bt = *bg->as_table();
+        if (bt.contains("column")) {
+          out.notes.push_back("the background of " + pname +
+                              " comes from a met column and cannot be scaled in the case file; "
+                              "its fitted scale is " +
+                              format_number(e.value, 5));
+        }
+        if (const toml::array* arr = bt.get_as<toml::array>("by_wind_from")) {
+          for (const toml::node& el : *arr) {
+            if (const toml::table* sec = el.as_table()) {
+              scale_string_node(sec->get("value"), e.value,
+                                "[pollutants." + pname + "] background by_wind_from value", edits);
+            }
+          }
+        }
+      }
+      scale_string_node(t->get("free_troposphere"), e.value,
+                        "[pollutants." + pname + "] free_troposphere", edits);
+      continue;
+    }
+    const toml::node* em = root["sectors"][e.name]["emissions"][pname].node();
+    scale_string_node(em, e.value, "[sectors." + e.name + "] emissions " + pname, edits);
+  }
+  // Scale factors in the edits' descriptions: add them now (one per fitted column).
+  for (Edit& ed : edits) {
+    for (const FitEstimate& e : fit.estimates) {
+      const bool bg = e.name == "background" && ed.what.rfind("[pollutants.", 0) == 0;
+      const bool sec = ed.what.rfind("[sectors." + e.name + "]", 0) == 0;
+      if (bg || sec) ed.what += " (" + scale_text(e.value) + ")";
+    }
+  }
+  // The name, and relative paths.
+  if (const toml::node* n = root.get("name"); n && n->is_string()) {
+    Edit e;
+    e.line = n->source().begin.line;
+    e.column = n->source().begin.column;
+    e.old_token = quoted(c.name);
+    e.new_token = quoted(c.name + "-calibrated");
+    e.what = "name \"" + c.name + "\" -> \"" + c.name + "-calibrated\"";
+    edits.push_back(e);
+  }
+  const std::filesystem::path case_dir = std::filesystem::path(c.file).parent_path();
+  path_node(root["met"]["file"].node(), case_dir, output_dir, "[met] file", edits);
+  if (const toml::array* rs = root["standards"]["rule_sets"].as_array()) {
+    for (const toml::node& el : *rs) {
+      const std::string v = el.value<std::string>().value_or("");
+      if (std::filesystem::path(v).extension() == ".toml") {
+        path_node(&el, case_dir, output_dir, "[standards] rule_sets", edits);
+      }
+    }
+  }
+  path_node(root["standards"]["rules_dir"].node(), case_dir, output_dir, "[standards] rules_dir",
+            edits);
+
+  // Apply, line by line; several edits on one line share one comment.
+  std::map<std::size_t, std::vector<const Edit*>> by_line;
+  for (const Edit& e : edits) by_line[e.line].push_back(&e);
+  std::vector<std::string> lines;
+  {
+    std::string line;
+    std::istringstream in(case_text);
+    while (std::getline(in, line)) lines.push_back(line);
+  }
+  std::ostringstream o;
+  o << "# Calibrated by lidbox evaluate: " << fit_label << ".\n"
+    << "# Every changed line below has a comment above it naming the fit and the old value.\n";
+  for (const auto& n : out.notes) o << "# Note: " << n << ".\n";
+  for (std::size_t i = 0; i < lines.size(); ++i) {
+    std::string line = lines[i];
+    const auto it = by_line.find(i + 1);
+    if (it != by_line.end()) {
+      const std::size_t indent = line.find_first_not_of(" \t");
+      const std::string pad = line.substr(0, indent == std::string::npos ? 0 : indent);
+      std::vector<std::string> whats;
+      for (const Edit* e : it->second) {
+        // The token nearest the node's column (columns count characters, not bytes).
+        std::size_t best = std::string::npos, pos = line.find(e->old_token);
+        while (pos != std::string::npos) {
+          if (best == std::string::npos ||
+              std::llabs(static_cast<long long>(pos + 1) - static_cast<long long>(e->column)) <
+                  std::llabs(static_cast<long long>(best + 1) -
+                             static_cast<long long>(e->column))) {
+            best = pos;
+          }
+          pos = line.find(e->old_token, pos + 1);
+        }
+        if (best == std::string::npos) {
+          throw InternalError("calibrated_case: " + e->old_token + " not found on line " +
+                              std::to_string(i + 1));
+        }
+        line.replace(best, e->old_token.size(), e->new_token);
+        whats.push_back(e->what);
+        out.changes.push_back("line " + std::to_string(i + 1) + ": " + e->what);
+      }
+      o << pad << "# lidbox evaluate (" << fit_label << "): " << join(whats, "; ") << "\n";
+    }
+    o << line << "\n";
+  }
+  out.text = o.str();
+  return out;
+}
+
+}  // namespace lidbox
