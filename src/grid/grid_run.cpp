@@ -167,7 +167,7 @@ void close_cell_period(const GridCase& gc, const Layout& L, PeriodAcc& a, bool d
   }
   const double n = static_cast<double>(a.vent_daily.size());
   put(n > 0 ? a.vent_sum / n : kNaN);
-  for (double q : gc.grid.percentiles) put(percentile_linear(a.vent_daily, q));
+  for (double q : gc.grid.percentiles) put(grid_percentile(a.vent_daily, q));
   put(a.dil_days > 0 ? a.dil_sum / a.dil_days : kNaN);
   if (L.exceedance) put(a.exceed_days);
   a.reset(L.schemes);
@@ -749,7 +749,7 @@ GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
   return S;
 }
 
-double percentile_linear(std::vector<double>& values, double q) {
+double grid_percentile(std::vector<double>& values, double q) {
   if (values.empty()) return kNaN;
   std::sort(values.begin(), values.end());
   const double pos = q / 100.0 * static_cast<double>(values.size() - 1);
