@@ -65,10 +65,10 @@ bool daily_kind_of(const Limit& l, DailyKind& k) {
     case StatisticKind::daily_mean:
     case StatisticKind::daily_max_1h:
     case StatisticKind::daily_max_8h_24_windows:
-      k = {l.statistic, 1, min_valid_count(24, l.min_valid_fraction)};
+      k = {l.statistic, 1, min_valid_count(24, l.day_valid_fraction)};
       return true;
     case StatisticKind::daily_max_8h_17_windows:
-      k = {l.statistic, 1, min_valid_count(17, l.min_valid_fraction)};
+      k = {l.statistic, 1, min_valid_count(17, l.day_valid_fraction)};
       return true;
     default:
       return false;
@@ -82,10 +82,11 @@ DailyValues daily_of(const HourlySeries& s, const DailyKind& k, int off) {
     case StatisticKind::daily_max_1h:
       return daily_max_1h(s, off, k.required);
     case StatisticKind::daily_max_8h_17_windows:
-      return daily_max_of_windows(running_means(s, 8, 6), off,
+      return daily_max_of_windows(running_means(s, 8, 6, WindowSpan::reaching_into_series), off,
                                   kUsOzoneDayWindows.requiring(k.required));
     case StatisticKind::daily_max_8h_24_windows:
-      return daily_max_of_windows(running_means(s, 8, 6), off, kEuDayWindows.requiring(k.required));
+      return daily_max_of_windows(running_means(s, 8, 6, WindowSpan::reaching_into_series), off,
+                                  kEuDayWindows.requiring(k.required));
     case StatisticKind::running_mean:
       return daily_max_of_windows(running_means(s, k.window_h, min_valid_count(k.window_h)), off,
                                   DailyWindowRule{0, 24, k.required});

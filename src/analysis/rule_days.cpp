@@ -119,7 +119,7 @@ RuleDays rule_days(const Limit& l, const HourlySeries& s, double f, int off) {
       break;
     case StatisticKind::daily_max_1h: {
       hourly_elements(s, f, off, r);
-      const int required = min_valid_count(24, l.min_valid_fraction);
+      const int required = min_valid_count(24, l.day_valid_fraction);
       for (std::size_t d = 0; d < r.days(); ++d) r.day_complete[d] = present_in(r, d) >= required;
       break;
     }
@@ -138,7 +138,7 @@ RuleDays rule_days(const Limit& l, const HourlySeries& s, double f, int off) {
       // position in that day is below window_count.
       const bool us = l.statistic == StatisticKind::daily_max_8h_17_windows;
       const DailyWindowRule w = us ? kUsOzoneDayWindows : kEuDayWindows;
-      const RunningMeans rm = running_means(s, 8, 6);
+      const RunningMeans rm = running_means(s, 8, 6, WindowSpan::reaching_into_series);
       window_elements(rm, f, r);
       group_elements(r, [&](std::size_t j) -> std::int64_t {
         const std::int64_t shifted =
@@ -146,12 +146,12 @@ RuleDays rule_days(const Limit& l, const HourlySeries& s, double f, int off) {
         const std::int64_t day = floor_div(shifted, 24);
         return shifted - day * 24 < w.window_count ? day : -1;
       });
-      const int required = min_valid_count(w.window_count, l.min_valid_fraction);
+      const int required = min_valid_count(w.window_count, l.day_valid_fraction);
       for (std::size_t d = 0; d < r.days(); ++d) r.day_complete[d] = present_in(r, d) >= required;
       break;
     }
     case StatisticKind::daily_mean:
-      daily_mean_elements(s, f, off, min_valid_count(24, l.min_valid_fraction), r);
+      daily_mean_elements(s, f, off, min_valid_count(24, l.day_valid_fraction), r);
       break;
     default:
       break;

@@ -260,9 +260,11 @@ void add_evaluate_command(CLI::App& app, int& exit_code) {
                   "Fit scales: nnls (non-negative least squares) or bayes (Gaussian priors)");
   sub->add_flag("--offset", a->offset, "Also fit a constant offset (any sign)");
   sub->add_flag("--no-background", a->no_background, "Hold the background at its case value");
-  sub->add_option("--hold", a->hold, "Hold this sector at its case value (repeatable)");
+  sub->add_option("--hold", a->hold, "Hold this sector at its case value (repeatable)")
+      ->allow_extra_args(false);
   sub->add_option("--prior", a->priors,
-                  "Bayesian prior NAME=MEAN:SD of a scale (repeatable; default 1:1)");
+                  "Bayesian prior NAME=MEAN:SD of a scale (repeatable; default 1:1)")
+      ->allow_extra_args(false);
   sub->add_option(
       "--obs-error", a->obs_error,
       "Bayesian observation error, one hour, in the case's unit (default: the NNLS residual s.d.)");

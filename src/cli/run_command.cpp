@@ -13,6 +13,7 @@
 #include "lidbox/report/diagnostics_report.hpp"
 #include "lidbox/report/run_netcdf.hpp"
 #include "lidbox/report/run_report.hpp"
+#include "lidbox/report/cut_report.hpp"
 #include "lidbox/report/ensemble_report.hpp"
 #include "progress.hpp"
 
@@ -72,13 +73,20 @@ void add_run_command(CLI::App& app, int& exit_code) {
         files.push_back(std::move(f));
       }
     }
+    const auto rule_sets = standards ? standards->options.rule_sets : std::vector<RuleSet>{};
+    std::optional<EnsembleOutcome> ens;
     if (c.ensemble) {
-      const auto ens = forecast_ensemble(
-          c, met, standards ? standards->options.rule_sets : std::vector<RuleSet>{},
-          [&progress](double f) { progress.update(f, "ensemble"); });
+      ens = forecast_ensemble(c, met, rule_sets,
+                              [&progress](double f) { progress.update(f, "ensemble"); });
       progress.finish();
-      append_section(files, "summary.txt", render_ensemble_summary(c, ens));
-      for (auto& f : render_ensemble_outputs(c, ens)) files.push_back(std::move(f));
+      append_section(files, "summary.txt", render_ensemble_summary(c, *ens));
+      for (auto& f : render_ensemble_outputs(c, *ens)) files.push_back(std::move(f));
+    }
+    if (c.cut) {
+      const EmissionCut cut =
+          compute_emission_cut(c, met, ens ? ens->member_met : std::vector<MetSeries>{}, rule_sets);
+      append_section(files, "summary.txt", render_cut_summary(c, cut));
+      files.push_back({"cut.csv", render_cut_csv(c, cut)});
     }
     const std::string dir = opt->output_dir.empty() ? c.output_directory : opt->output_dir;
     const auto written = write_output_files(dir, files);

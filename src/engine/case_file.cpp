@@ -589,12 +589,15 @@ void read_output(const TomlTable& top, CaseSpec& c) {
   c.netcdf_output = r->optional_bool("netcdf").value_or(false);
 }
 
-// [scenario] and [ensemble]: their readers live with their concepts.
+// [scenario], [ensemble] and [cut]: their readers live with their concepts.
 void read_forecast_tables(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
   std::vector<std::string> sectors;
   for (const auto& s : c.sectors) sectors.push_back(s.name);
   c.scenario = read_emission_scenario(top, sectors, c.zone);
   c.ensemble = read_ensemble_spec(top, base_dir);
+  const std::size_t listed =
+      c.ensemble && !c.ensemble->netcdf_members ? c.ensemble->files.size() : 0;
+  c.cut = read_cut_request(top, sectors, c.zone, c.ensemble.has_value(), listed);
 }
 
 }  // namespace
@@ -603,7 +606,7 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   const TomlDocument doc(text, file);
   const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
                             "pollutants", "sectors", "standards", "diagnostics", "grid", "output",
-                            "scenario", "ensemble"});
+                            "scenario", "ensemble", "cut"});
   CaseSpec c;
   c.file = file;
   read_top_level(top, c);

@@ -118,7 +118,7 @@ GridCase parse_grid_case(const std::string& text, const std::string& file,
   const CaseSpec& c = gc.base;
   const TomlDocument doc(text, file);
   const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
-                            "pollutants", "sectors", "standards", "diagnostics", "grid", "output"});
+                            "pollutants", "sectors", "standards", "diagnostics", "grid", "output", "scenario", "ensemble", "cut"});
   const auto g = top.optional_table(
       "grid", {"pollutant", "flux", "periods", "percentiles", "exceedance_statistic",
                "exceedance_level", "series", "threads", "chunk_days"});

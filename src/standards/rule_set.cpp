@@ -215,6 +215,9 @@ const std::vector<std::string> kLimitKeys = {"id",
                                              "ranking",
                                              "non_overlapping",
                                              "rounding",
+                                             "day_valid_fraction",
+                                             "period_valid_fraction",
+                                             "year_coverage",
                                              "min_valid_fraction",
                                              "incomplete_day_counts_if_above",
                                              "years_averaged",
@@ -250,6 +253,50 @@ void read_limit_form(const TomlTable& r, Limit& l) {
   }
 }
 
+bool built_from_days(StatisticKind s) {
+  return s == StatisticKind::daily_mean || s == StatisticKind::daily_max_1h ||
+         s == StatisticKind::daily_max_8h_17_windows ||
+         s == StatisticKind::daily_max_8h_24_windows ||
+         s == StatisticKind::annual_mean_of_quarterly_means || s == StatisticKind::peak_season_mean;
+}
+
+// A completeness fraction in (0, 1], or the fallback when the key is absent; a key the statistic
+// has no use for is an error rather than a silent no-op.
+double fraction(const TomlTable& r, const char* key, double fallback, bool applies, const Limit& l,
+                const char* applies_to) {
+  const auto v = r.optional_number(key);
+  if (!v) return fallback;
+  if (!applies) {
+    throw InputError(r.where(key),
+                     std::string(key) + " with statistic \"" + to_string(l.statistic) + "\"",
+                     std::string(key) + " only " + applies_to);
+  }
+  if (!(*v > 0.0 && *v <= 1.0)) {
+    throw InputError(r.where(key), format_number(*v), "a fraction in (0, 1]");
+  }
+  return *v;
+}
+
+// The two completeness rules of the published standards, kept apart: what makes a day (or a
+// quarter, a month) valid, and what share of a year's values makes the year covered.
+void read_completeness(const TomlTable& r, Limit& l) {
+  if (r.optional_number("min_valid_fraction")) {
+    throw InputError(r.where("min_valid_fraction"),
+                     "min_valid_fraction, which mixed a day's completeness with a year's",
+                     "day_valid_fraction (the share of a day's hours or 8-h windows that makes "
+                     "a valid day) and year_coverage (the share of a year's values that makes a "
+                     "covered year)");
+  }
+  const bool quarters = l.statistic == StatisticKind::annual_mean_of_quarterly_means;
+  const bool season = l.statistic == StatisticKind::peak_season_mean;
+  l.day_valid_fraction = fraction(r, "day_valid_fraction", 0.75, built_from_days(l.statistic), l,
+                                  "for statistics built from days");
+  l.period_valid_fraction = fraction(r, "period_valid_fraction", 0.75, quarters || season, l,
+                                     "with annual_mean_of_quarterly_means or peak_season_mean");
+  l.year_coverage = fraction(r, "year_coverage", quarters ? 1.0 : 0.75, !season, l,
+                             "with statistics other than peak_season_mean");
+}
+
 // Which values count: windows, rounding before comparison, completeness, years averaged.
 void read_limit_data_rules(const TomlTable& r, Limit& l) {
   l.non_overlapping = r.optional_bool("non_overlapping").value_or(false);
@@ -260,11 +307,7 @@ void read_limit_data_rules(const TomlTable& r, Limit& l) {
         "non_overlapping only with statistic \"running_mean\"");
   }
   l.rounding = parse_rounding(r.optional_string("rounding").value_or("none"), r.where("rounding"));
-  l.min_valid_fraction = r.optional_number("min_valid_fraction").value_or(0.75);
-  if (!(l.min_valid_fraction > 0.0 && l.min_valid_fraction <= 1.0)) {
-    throw InputError(r.where("min_valid_fraction"), format_number(l.min_valid_fraction),
-                     "a fraction in (0, 1]");
-  }
+  read_completeness(r, l);
   l.incomplete_day_counts_if_above =
       r.optional_bool("incomplete_day_counts_if_above").value_or(false);
   l.years_averaged = count(r, "years_averaged", false, 1, 1);

@@ -149,7 +149,7 @@ std::vector<YearBucket> collect(const HourlySeries& s, double f, const Limit& l,
     case StatisticKind::daily_max_8h_24_windows: {
       const int total = l.statistic == StatisticKind::daily_max_8h_17_windows ? 17 : 24;
       const DailyValues& dv =
-          cache.day(l.pollutant, s, l.statistic, min_valid_count(total, l.min_valid_fraction), off);
+          cache.day(l.pollutant, s, l.statistic, min_valid_count(total, l.day_valid_fraction), off);
       for (std::size_t d = 0; d < dv.size(); ++d) {
         const int y = year_of_day(dv.day(d));
         YearBucket& b = bucket_for(years, y);
@@ -162,8 +162,7 @@ std::vector<YearBucket> collect(const HourlySeries& s, double f, const Limit& l,
       break;
     }
     case StatisticKind::annual_mean:
-      for (const PeriodMean& pm :
-           period_means_of_hours(s, off, Period::year, l.min_valid_fraction)) {
+      for (const PeriodMean& pm : period_means_of_hours(s, off, Period::year, l.year_coverage)) {
         YearBucket& b = bucket_for(years, pm.year);
         b.annual = pm.mean * f;
         b.annual_complete = pm.complete;
@@ -172,21 +171,22 @@ std::vector<YearBucket> collect(const HourlySeries& s, double f, const Limit& l,
       }
       break;
     case StatisticKind::annual_mean_of_quarterly_means: {
-      const DailyValues& dv = cache.day(l.pollutant, s, StatisticKind::daily_mean, 18, off);
-      const auto quarters = period_means_of_days(dv, Period::quarter, l.min_valid_fraction);
+      const DailyValues& dv = cache.day(l.pollutant, s, StatisticKind::daily_mean,
+                                        min_valid_count(24, l.day_valid_fraction), off);
+      const auto quarters = period_means_of_days(dv, Period::quarter, l.period_valid_fraction);
       for (const AnnualOfQuarters& a : annual_means_of_quarters(quarters)) {
         YearBucket& b = bucket_for(years, a.year);
         b.annual = a.mean * f;
-        b.annual_complete = a.complete;
+        b.annual_complete = a.complete_quarters >= min_valid_count(4, l.year_coverage);
         b.annual_valid = a.complete_quarters;
         b.possible = 4;
       }
       break;
     }
     case StatisticKind::peak_season_mean: {
-      const DailyValues& dv =
-          cache.day(l.pollutant, s, StatisticKind::daily_max_8h_24_windows, 18, off);
-      const auto months = period_means_of_days(dv, Period::month, l.min_valid_fraction);
+      const DailyValues& dv = cache.day(l.pollutant, s, StatisticKind::daily_max_8h_24_windows,
+                                        min_valid_count(24, l.day_valid_fraction), off);
+      const auto months = period_means_of_days(dv, Period::month, l.period_valid_fraction);
       for (std::size_t m = 0; m < months.size(); ++m) {
         YearBucket& b = bucket_for(years, months[m].year);
         b.possible = 12;
@@ -241,7 +241,7 @@ std::vector<LimitYearResult> evaluate_limits(const NamedSeries& series, const Ru
       const bool annual = l.form == LimitForm::annual_value;
       r.valid_count = annual ? b.annual_valid : static_cast<int>(b.values.size());
       r.complete = annual ? b.annual_complete
-                          : r.valid_count >= min_valid_count(b.possible, l.min_valid_fraction);
+                          : r.valid_count >= min_valid_count(b.possible, l.year_coverage);
       const bool rolling = l.statistic == StatisticKind::running_mean;
       if (rolling && l.non_overlapping) {
         r.exceedances = count_non_overlapping_exceedances(rm, b.begin, b.end, l.level, l.rounding);

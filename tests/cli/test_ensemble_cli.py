@@ -64,7 +64,7 @@ def test_demo_against_single_member_runs():
         text = demo_copy(d)
         p = run(["run", write_case(d, text), "-o", "out"], d)
         check(p.returncode == 0, "forecast demo exits 0 (stderr: %s)" % p.stderr.strip())
-        for name in ("ensemble_hourly.csv", "ensemble_days.csv", "ensemble_episodes.csv"):
+        for name in ("ensemble_hourly.csv", "ensemble_days.csv", "ensemble_episodes.csv", "cut.csv"):
             check(os.path.isfile(os.path.join(d, "out", name)), "ensemble run writes " + name)
         check("Ensemble 12 members (forecast/member-01.csv ... forecast/member-12.csv)" in p.stdout,
               "summary names the members")
@@ -72,7 +72,7 @@ def test_demo_against_single_member_runs():
         ens = read_csv(os.path.join(d, "out", "ensemble_hourly.csv"))
         check(len(ens) == 120, "120 hourly percentile rows")
         # Each member alone: the same case with the member as its [met] file and no ensemble.
-        single = text.split("[ensemble]")[0] + "[model]" + text.split("[model]")[1]
+        single = text.split("[ensemble]")[0] + "[model]" + text.split("[model]")[1].split("[cut]")[0]
         members = []
         for m in range(1, 13):
             case = single.replace('file = "forecast/control.csv"', 'file = "forecast/member-%02d.csv"' % m)
@@ -136,6 +136,21 @@ def test_bad_inputs():
         "case.toml:22: [ensemble] percentiles: 105 at position 5; expected rising percentiles from 0 to 100, "
         "such as [5, 25, 50, 75, 95]",
         lambda t: t.replace("percentiles = [5, 25, 50, 75, 95]", "percentiles = [5, 25, 50, 75, 105]"))
+
+    expect_error(
+        "a cut start outside the run",
+        "case.toml:71: [cut] start: 2026-02-20T01:00:00Z, outside the run; expected the start of an hour from "
+        "2026-02-09T07:00:00Z to 2026-02-14T06:00:00Z",
+        lambda t: t.replace('start = "2026-02-10T18:00:00-07:00"', 'start = "2026-02-19T18:00:00-07:00"'))
+    expect_error(
+        "a sector that does not exist",
+        "case.toml:70: [cut] sectors: no sector \"home_heatng\" (did you mean \"home_heating\"?); expected one "
+        "of the case's sectors: traffic, home_heating, industry",
+        lambda t: t.replace('sectors = ["home_heating"]', 'sectors = ["home_heatng"]'))
+    expect_error(
+        "a member count the ensemble cannot have",
+        "case.toml:72: [cut] target: at most 12 of 12 members, which every scale meets; expected a count from 0 to 11",
+        lambda t: t.replace("target = { at_most_members = 1 }", "target = { at_most_members = 12 }"))
 
 
 test_demo_against_single_member_runs()

@@ -94,6 +94,12 @@ with tempfile.TemporaryDirectory() as tmp:
         rc2, _, se2 = run(["run", cal, "-o", os.path.join(tmp, "calrun"), "-q"])
         check(rc2 == 0, "the calibrated case runs from its own folder: " + se2)
 
+    # --hold and --prior take one value each, wherever they stand among the positionals.
+    rc, so, se = run(["evaluate", "--hold", "home_heating", CASE, mon, "--pollutant", "PM2.5", "--fit", "nnls",
+                      "--bootstrap", "0", "-o", os.path.join(tmp, "hold")])
+    check(rc == 0 and "home_heating: held at 1 (--hold)" in open(os.path.join(tmp, "hold", "evaluation.md")).read(),
+          "--hold before the case: " + se)
+
     # Bad input.
     late = os.path.join(tmp, "late.csv")
     write(late, "time,PM2.5 [ug/m3]\n2025-07-01T00:00Z,5\n2025-07-01T01:00Z,6\n")

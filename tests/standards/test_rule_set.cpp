@@ -10,7 +10,8 @@ using namespace lidbox;
 
 namespace {
 
-const std::filesystem::path kRulesDir = std::filesystem::path(LIDBOX_SOURCE_DIR) / "src" / "data" / "rules";
+const std::filesystem::path kRulesDir =
+    std::filesystem::path(LIDBOX_SOURCE_DIR) / "src" / "data" / "rules";
 
 // A minimal valid file; tests replace one line to make it wrong.
 std::string good_file(const std::string& limit_body) {
@@ -114,7 +115,8 @@ TEST_CASE("an unknown key gives a did-you-mean hint") {
   CHECK(error_of(text) ==
         "local.toml:15: [[limit]]: unknown key \"levle\"; expected one of id, pollutant, "
         "kind, averaging, statistic, level, unit, form, allowed_exceedances, rank, percentile, "
-        "ranking, non_overlapping, rounding, min_valid_fraction, "
+        "ranking, non_overlapping, rounding, day_valid_fraction, period_valid_fraction, "
+        "year_coverage, min_valid_fraction, "
         "incomplete_day_counts_if_above, years_averaged, legal_source, legal_date, checked, "
         "note (did you mean \"level\"?)");
 }
@@ -211,4 +213,38 @@ TEST_CASE("several rule sets load in order and a repeated one is refused") {
                        "rule set \"eu-2008\": id \"eu-2008-50\" already loaded; expected each "
                        "rule set once",
                        InputError);
+}
+
+TEST_CASE("a rule says a valid day and a covered year apart, and the old single key is refused") {
+  // Issue 13 item 2: one fraction did two jobs. The published rules keep them apart, e.g. the
+  // EU: a day with 75 % of its hours (Annex XI A) and a year with 90 % data capture (Directive
+  // 2008/50/EC Annex I A, legislation.gov.uk copy).
+  const RuleSet rs =
+      parse_rule_set(good_file(replaced(kLimit, "allowed_exceedances = 35\n",
+                                        "allowed_exceedances = 35\nday_valid_fraction = 0.75\n"
+                                        "year_coverage = 0.9\n")),
+                     "local.toml");
+  CHECK(rs.limits[0].day_valid_fraction == 0.75);
+  CHECK(rs.limits[0].year_coverage == 0.9);
+  // Unset: 75 % for both (the documented defaults).
+  const RuleSet plain = parse_rule_set(good_file(kLimit), "local.toml");
+  CHECK(plain.limits[0].day_valid_fraction == 0.75);
+  CHECK(plain.limits[0].year_coverage == 0.75);
+  CHECK(error_of(good_file(replaced(kLimit, "allowed_exceedances = 35\n",
+                                    "allowed_exceedances = 35\nmin_valid_fraction = 0.9\n"))) ==
+        "local.toml:19: [[limit]] min_valid_fraction: min_valid_fraction, which mixed a day's "
+        "completeness with a year's; expected day_valid_fraction (the share of a day's hours or "
+        "8-h windows that makes a valid day) and year_coverage (the share of a year's values "
+        "that makes a covered year)");
+  CHECK(error_of(good_file(replaced(kLimit, "allowed_exceedances = 35\n",
+                                    "allowed_exceedances = 35\nyear_coverage = 1.5\n"))) ==
+        "local.toml:19: [[limit]] year_coverage: 1.5; expected a fraction in (0, 1]");
+  // A day's rule on an hourly statistic would do nothing: refused.
+  const std::string hourly =
+      replaced(replaced(kLimit, "averaging = \"day\"", "averaging = \"1-hour\""),
+               "statistic = \"daily_mean\"", "statistic = \"hourly_value\"");
+  CHECK(error_of(good_file(replaced(hourly, "allowed_exceedances = 35\n",
+                                    "allowed_exceedances = 35\nday_valid_fraction = 0.75\n"))) ==
+        "local.toml:19: [[limit]] day_valid_fraction: day_valid_fraction with statistic "
+        "\"hourly_value\"; expected day_valid_fraction only for statistics built from days");
 }

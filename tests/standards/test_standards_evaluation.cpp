@@ -284,3 +284,38 @@ TEST_CASE("the daily table counts the first day's 8-hour windows like the last d
   CHECK(it->valid_count == 17);
   CHECK(it->complete);
 }
+
+TEST_CASE(
+    "a monitor record with 292 of 366 days gives one verdict for the daily and annual limit") {
+  // Issue 13 item 2. Directive 2008/50/EC: a day is valid with 75 % of its hours (Annex XI A),
+  // and the year needs 90 % data capture for fixed measurements (Annex I A, legislation.gov.uk
+  // copy; for the annual mean "of the one hour values ... over the year", ECHA annex list note
+  // 22). Invented 2024 (366 days, 8784 hours): 292 whole days at 20 ug/m3, the other 74 missing.
+  // 292 days = 7008 hours: 79.8 % of the year, below 90 % for both limits (closed form), so the
+  // daily count and the annual mean are both "incomplete" (formerly "within" and "incomplete").
+  RuleSet eu = load_rule_set("eu-2008-50", kRulesDir);
+  eu.limits.erase(std::remove_if(eu.limits.begin(), eu.limits.end(),
+                                 [](const Limit& l) { return l.pollutant != "PM10"; }),
+                  eu.limits.end());
+  REQUIRE(eu.limits.size() == 2);
+  std::vector<double> v(8784, kMissing);
+  for (std::size_t i = 0; i < 292 * 24; ++i) v[i] = 20.0;
+  NamedSeries s{{"PM10", HourlySeries{utc(2024, 1, 1), v, "ug m-3"}}};
+  const auto rs = evaluate_limits(s, eu, 0);
+  const auto day = result(rs, "PM10-day", 2024);
+  const auto year = result(rs, "PM10-year", 2024);
+  CHECK(day.valid_count == 292);
+  CHECK(day.possible_count == 366);
+  CHECK(year.valid_count == 7008);
+  CHECK(year.possible_count == 8784);
+  CHECK_FALSE(day.complete);
+  CHECK_FALSE(year.complete);
+  CHECK(day.verdict == Verdict::incomplete);
+  CHECK(year.verdict == Verdict::incomplete);
+  // With 330 days (90.2 %, >= ceil(0.9 * 366) = 330) both are covered and within.
+  for (std::size_t i = 292 * 24; i < 330 * 24; ++i) v[i] = 20.0;
+  NamedSeries full{{"PM10", HourlySeries{utc(2024, 1, 1), v, "ug m-3"}}};
+  const auto covered = evaluate_limits(full, eu, 0);
+  CHECK(result(covered, "PM10-day", 2024).verdict == Verdict::within);
+  CHECK(result(covered, "PM10-year", 2024).verdict == Verdict::within);
+}

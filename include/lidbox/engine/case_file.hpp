@@ -14,6 +14,7 @@
 #include <vector>
 
 #include "lidbox/engine/box_model.hpp"
+#include "lidbox/engine/cut_request.hpp"
 #include "lidbox/engine/emission_scenario.hpp"
 #include "lidbox/engine/ensemble_spec.hpp"
 #include "lidbox/base/concentration_units.hpp"
@@ -117,6 +118,7 @@ struct CaseSpec {
   bool invented = false;                // the case says its scenario is invented
   std::optional<EmissionScenario> scenario;  // [scenario]: sectors scaled from a start time
   std::optional<EnsembleSpec> ensemble;      // [ensemble]: met members run beside [met]
+  std::optional<CutRequest> cut;             // [cut]: the exact emission cut asked for
   // Where the case's [grid] table is ("file:line: (top level) grid"), "" without one: a grid
   // case is read by grid/grid_case.hpp and run by `lidbox grid`, never as a point.
   std::string grid_table;

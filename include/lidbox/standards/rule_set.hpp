@@ -1,7 +1,7 @@
 // Air-quality rule sets as data: limit values / standards / guidelines and alert thresholds, read
-// from one TOML file per rule set. The shipped files live in src/data/rules/ (US NAAQS, EU 2008/50/EC,
-// EU 2024/2881 2030 values, WHO 2021 guidelines with interim targets); a user may write their
-// own in the same format and pass its path.
+// from one TOML file per rule set. The shipped files live in src/data/rules/ (US NAAQS, EU
+// 2008/50/EC, EU 2024/2881 2030 values, WHO 2021 guidelines with interim targets); a user may write
+// their own in the same format and pass its path.
 //
 // File format (every key is checked; an unknown key is an error with a "did you mean" hint):
 //
@@ -15,26 +15,42 @@
 //   note = "..."                          # optional
 //
 //   [[limit]]
-//   id = "CO-8h"                          # unique within the file
-//   pollutant = "CO"                      # see pollutant.hpp
-//   kind = "primary standard"             # the instrument's own word: limit value, target value,
-//   AQG, IT-1, ... averaging = "8-hour"                  # "1-hour", "<k>-hour", "24-hour", "day",
-//   "year", "peak-season" statistic = "running_mean"            # see StatisticKind level = 9.0
-//   unit = "ppm"                          # any unit of concentration_units.hpp
-//   form = "exceedances"                  # exceedances | nth_highest | percentile | annual_value
-//   allowed_exceedances = 1               # form = exceedances
-//   rank = 4                              # form = nth_highest
-//   percentile = 98.0                     # form = percentile
-//   ranking = "us_98th"                   # form = percentile: us_98th | us_99th | nearest_rank
-//   non_overlapping = true                # running_mean: count / rank non-overlapping windows
-//   rounding = "round_half_up:0"          # none | round_half_up:<d> | truncate:<d>
-//   min_valid_fraction = 0.75             # completeness of a year (and of a day for daily
-//   statistics) incomplete_day_counts_if_above = true # an incomplete day still counts when above
-//   the level years_averaged = 3                    # the form averages this many calendar years
+//   id = "CO-8h"                    # unique within the file
+//   pollutant = "CO"                # see pollutant.hpp (an unknown name is an error)
+//   kind = "primary standard"       # the instrument's own word: limit value, AQG, IT-1, ...
+//   averaging = "8-hour"            # "1-hour", "<k>-hour", "24-hour", "day", "year",
+//                                   # "peak-season"
+//   statistic = "running_mean"      # see StatisticKind
+//   level = 9.0
+//   unit = "ppm"                    # any unit of concentration_units.hpp
+//   form = "exceedances"            # exceedances | nth_highest | percentile | annual_value
+//   allowed_exceedances = 1         # form = exceedances
+//   rank = 4                        # form = nth_highest
+//   percentile = 98.0               # form = percentile
+//   ranking = "us_98th"             # form = percentile: us_98th | us_99th | nearest_rank
+//   non_overlapping = true          # running_mean: count / rank non-overlapping windows
+//   rounding = "round_half_up:0"    # none | round_half_up:<d> | truncate:<d>
+//   day_valid_fraction = 0.75       # a valid day: share of its hours (daily mean, daily max
+//                                   # 1-h) or 8-h windows (daily max 8-h); only for the
+//                                   # statistics built from days
+//   period_valid_fraction = 0.75    # a valid quarter (annual_mean_of_quarterly_means) or
+//                                   # month (peak_season_mean): share of its valid days
+//   year_coverage = 0.9             # a covered year: share of the values a full year has
+//                                   # (hours; valid days for daily statistics; quarters for
+//                                   # annual_mean_of_quarterly_means); not for peak_season_mean
+//   incomplete_day_counts_if_above = true  # an incomplete day still counts when above the
+//                                   # level
+//   years_averaged = 3              # the form averages this many calendar years
 //   legal_source = "40 CFR 50.8(a)(1)"
-//   legal_date = "2011-08-31"             # optional
-//   checked = "SRC: ..."                  # how this entry was verified: SRC / MEM / PRAC, with
-//   detail note = "..."                          # optional
+//   legal_date = "2011-08-31"       # optional
+//   checked = "SRC: ..."            # how this entry was verified: SRC / MEM / PRAC, with detail
+//   note = "..."                    # optional
+//
+// The two kinds of completeness are separate, as the published rules keep them: a day is valid
+// with e.g. 18 of 24 hours (75 %), and a year is covered with e.g. 90 % of its values (the EU
+// data-quality objectives, Directive 2008/50/EC Annex I A). Defaults: 0.75 for the day and the
+// period; year_coverage 0.75, or 1.0 (all four quarters) for annual_mean_of_quarterly_means.
+// The former single key min_valid_fraction is refused with a message naming the two.
 //
 //   [[alert]]
 //   id = "SO2-alert"
@@ -56,8 +72,8 @@
 #include <string_view>
 #include <vector>
 
-#include "lidbox/standards/averaging.hpp"
 #include "lidbox/base/concentration_units.hpp"
+#include "lidbox/standards/averaging.hpp"
 
 namespace lidbox {
 
@@ -95,7 +111,9 @@ struct Limit {
   RankingTable ranking = RankingTable::nearest_rank;
   bool non_overlapping = false;
   Rounding rounding;
-  double min_valid_fraction = 0.75;
+  double day_valid_fraction = 0.75;     // share of a day's hours or windows for a valid day
+  double period_valid_fraction = 0.75;  // share of a quarter's or month's days
+  double year_coverage = 0.75;          // share of a full year's values for a covered year
   bool incomplete_day_counts_if_above = false;
   int years_averaged = 1;
   std::string legal_source;

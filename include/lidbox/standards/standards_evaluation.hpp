@@ -6,17 +6,23 @@
 //
 // Per statistic (years are LST calendar years; a value belongs to the year of its LST day, a
 // running mean to the year of its start hour):
-//   hourly_value, running_mean   -> the hours / windows of the year (running means need
-//                                   ceil(0.75 k) hours, dividing by the hours present)
-//   daily_*                       -> days complete at min_valid_fraction of their hours or
-//                                   windows, plus incomplete days above the level when
-//                                   incomplete_day_counts_if_above is set
-//   annual_mean                   -> hours of the year, complete at min_valid_fraction
-//   annual_mean_of_quarterly_means-> complete days, quarters complete at min_valid_fraction
-//   peak_season_mean              -> highest mean of six consecutive monthly means of the
-//                                   24-window daily 8-h maximum, windows starting in the year
-// A year is complete when its counted values reach min_valid_fraction of the values a full
-// year has. Every compared value is first rounded as the limit says.
+//   hourly_value, running_mean     -> the hours / windows of the year (running means need
+//                                     ceil(0.75 k) hours, dividing by the hours present)
+//   daily_*                        -> days valid at day_valid_fraction of their hours or
+//                                     windows, plus incomplete days above the level when
+//                                     incomplete_day_counts_if_above is set
+//   annual_mean                    -> the hours of the year
+//   annual_mean_of_quarterly_means -> days valid at day_valid_fraction, quarters valid at
+//                                     period_valid_fraction of their days, the mean of the
+//                                     valid quarters
+//   peak_season_mean               -> highest mean of six consecutive monthly means (months
+//                                     valid at period_valid_fraction) of the 24-window daily
+//                                     8-h maximum, windows starting in the year
+// A year is covered (complete) when its counted values reach year_coverage of the values a full
+// year has: hours, valid days, or quarters; a peak season when six consecutive valid months
+// exist. The day's rule and the year's are separate keys, as in the published rules (e.g. EU:
+// 18 of 24 hours for a day, 90 % data capture for the year). Every compared value is first
+// rounded as the limit says.
 #pragma once
 
 #include <map>
