@@ -8,6 +8,7 @@
 #include <iostream>
 
 #include "evaluate_command.hpp"
+#include "grid_command.hpp"
 #include "lidbox/base/caution.hpp"
 #include "lidbox/base/error.hpp"
 #include "lidbox/base/output_folder.hpp"
@@ -37,6 +38,7 @@ int main(int argc, char** argv) {
   lidbox::cli::add_met_dump_command(app, exit_code);
   lidbox::cli::add_outlook_command(app, exit_code);
   lidbox::cli::add_evaluate_command(app, exit_code);
+  lidbox::cli::add_grid_command(app, exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -6,6 +6,7 @@
 
 #include "lidbox/analysis/run_standards.hpp"
 #include "lidbox/base/atomic_file.hpp"
+#include "lidbox/base/error.hpp"
 #include "lidbox/base/output_folder.hpp"
 #include "lidbox/diagnostics/daily_diagnostics.hpp"
 #include "lidbox/engine/case_file.hpp"
@@ -51,6 +52,10 @@ void add_run_command(CLI::App& app, int& exit_code) {
   run->add_flag("-q,--quiet", opt->quiet, "Print nothing on success");
   run->callback([opt, &exit_code] {
     const CaseSpec c = load_case(opt->case_file);
+    if (!c.grid_table.empty()) {
+      throw InputError(c.grid_table, "a [grid] table",
+                       "a point case for `lidbox run`; run a grid case with `lidbox grid`");
+    }
     const MetSeries met = read_case_met(c);
     const DiagnosticsSetup diag =
         load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);

@@ -611,7 +611,7 @@ void read_forecast_tables(const TomlTable& top, const std::string& base_dir, Cas
 CaseSpec parse_case(const std::string& text, const std::string& file, const std::string& base_dir) {
   const TomlDocument doc(text, file);
   const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
-                            "pollutants", "sectors", "standards", "diagnostics", "output",
+                            "pollutants", "sectors", "standards", "diagnostics", "grid", "output",
                             "scenario", "ensemble", "cut"});
   CaseSpec c;
   c.file = file;
@@ -623,6 +623,7 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   read_sectors(top, c);     // after [airshed] and the pollutants: area fluxes and emission keys
   read_standards(top, base_dir, c);
   read_diagnostics(top, base_dir, c);
+  if (top.has("grid")) c.grid_table = top.where("grid");  // the grid room reads it (grid_case.hpp)
   read_output(top, c);
   read_forecast_tables(top, base_dir, c);
   return c;

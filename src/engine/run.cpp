@@ -350,6 +350,18 @@ void record_hour(std::size_t i, const BoxEngine& engine, const BoxState& state, 
 
 }  // namespace
 
+BoxState start_state(const CaseSpec& c, const MetSeries& met, const Forcing& F, const BoxEngine& engine,
+                     RunResult& spin, const ProgressFn& progress) {
+  BoxState state = engine.make_state(F.mixing_height_m[0]);
+  if (c.spin_up == SpinUp::repeat_first_day) {
+    HourResult hr = engine.make_result();
+    spin_up(c, met, F, engine, state, hr, spin, progress);
+  } else {
+    set_initial_state(c, met, F, state);
+  }
+  return state;
+}
+
 RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& progress,
                    const RunStreaming& streaming) {
   RunResult R;
@@ -363,12 +375,7 @@ RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& pr
   R.clock_split_s = F.clock_split_s;
   HourResult hr = engine.make_result();
 
-  BoxState state = engine.make_state(F.mixing_height_m[0]);
-  if (c.spin_up == SpinUp::repeat_first_day) {
-    spin_up(c, met, F, engine, state, hr, R, progress);
-  } else {
-    set_initial_state(c, met, F, state);
-  }
+  BoxState state = start_state(c, met, F, engine, R, progress);
   allocate(R, n, P, R.n_parts, streaming.keep_budget);
   for (std::size_t p = 0; p < P; ++p) {
     R.initial_mixed_mass_g_m2[p] = engine.mixed_mass(state, p);

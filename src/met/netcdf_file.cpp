@@ -242,6 +242,16 @@ Packing::Packing(const File& f, const Var& v)
 
 // Fill and missing values are compared in the stored (signed) type; valid bounds after the
 // unsigned reinterpretation, as the NetCDF User Guide reads them.
+std::vector<std::size_t> File::chunk_sizes(const Var& v) const {
+  int storage = NC_CONTIGUOUS;
+  std::vector<std::size_t> sizes(v.dims.size(), 0);
+  if (v.dims.empty() || nc_inq_var_chunking(id_, v.id, &storage, sizes.data()) != NC_NOERR ||
+      storage != NC_CHUNKED) {
+    return {};
+  }
+  return sizes;
+}
+
 double Packing::operator()(double packed) const {
   if (std::isnan(packed)) return kNaN;
   for (double m : missing_) {

@@ -73,6 +73,9 @@ class File {
   [[nodiscard]] std::vector<double> read_values(const Var& v) const;
   [[nodiscard]] std::vector<double> read_values(const Var& v, const std::vector<std::size_t>& start,
                                                 const std::vector<std::size_t>& count) const;
+  // Chunk lengths of a NetCDF-4 chunked variable, slowest dimension first; empty for contiguous
+  // storage and classic files.
+  [[nodiscard]] std::vector<std::size_t> chunk_sizes(const Var& v) const;
   // Text values of a 1-D string variable, a 2-D char variable (instance, strlen), a scalar, or
   // numbers formatted as integers.
   [[nodiscard]] std::vector<std::string> read_ids(const Var& v) const;

@@ -34,29 +34,6 @@ bool units_in(const std::string& u, std::initializer_list<const char*> list) {
   return false;
 }
 
-bool is_latitude(const File& f, const Var& v) {
-  const std::string sn = lower(f.standard_name(v));
-  if (sn == "latitude") return true;
-  if (sn == "grid_latitude") return false;
-  if (units_in(f.text_att(v.id, "units").value_or(""),
-               {"degrees_north", "degree_north", "degree_n", "degrees_n", "degreen", "degreesn"})) {
-    return true;
-  }
-  const std::string n = lower(v.name);
-  return n == "lat" || n == "latitude";
-}
-
-bool is_longitude(const File& f, const Var& v) {
-  const std::string sn = lower(f.standard_name(v));
-  if (sn == "longitude") return true;
-  if (sn == "grid_longitude") return false;
-  if (units_in(f.text_att(v.id, "units").value_or(""),
-               {"degrees_east", "degree_east", "degree_e", "degrees_e", "degreee", "degreese"})) {
-    return true;
-  }
-  const std::string n = lower(v.name);
-  return n == "lon" || n == "longitude";
-}
 
 bool is_member_dim(const File& f, int d) {
   if (const Var* c = f.find(f.dim_name(d)); c && is_coordinate(f, *c)) {
@@ -493,6 +470,30 @@ void place_cells(const Chosen& chosen, const GridDims& grid, const Centres& c, S
 }
 
 }  // namespace
+
+bool is_latitude(const File& f, const Var& v) {
+  const std::string sn = lower(f.standard_name(v));
+  if (sn == "latitude") return true;
+  if (sn == "grid_latitude") return false;
+  if (units_in(f.text_att(v.id, "units").value_or(""),
+               {"degrees_north", "degree_north", "degree_n", "degrees_n", "degreen", "degreesn"})) {
+    return true;
+  }
+  const std::string n = lower(v.name);
+  return n == "lat" || n == "latitude";
+}
+
+bool is_longitude(const File& f, const Var& v) {
+  const std::string sn = lower(f.standard_name(v));
+  if (sn == "longitude") return true;
+  if (sn == "grid_longitude") return false;
+  if (units_in(f.text_att(v.id, "units").value_or(""),
+               {"degrees_east", "degree_east", "degree_e", "degrees_e", "degreee", "degreese"})) {
+    return true;
+  }
+  const std::string n = lower(v.name);
+  return n == "lon" || n == "longitude";
+}
 
 void refuse_ragged(const File& f) {
   for (const auto& cand : f.vars()) {

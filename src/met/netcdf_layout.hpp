@@ -39,6 +39,12 @@ struct Selection {
   std::string layout;  // NetcdfReadInfo::layout
 };
 
+// A latitude (longitude) variable: standard_name latitude (longitude), units degrees_north
+// (degrees_east) or a spelling of them, or the name lat/latitude (lon/longitude); rotated-pole
+// grid_latitude/grid_longitude are not.
+bool is_latitude(const File& f, const Var& v);
+bool is_longitude(const File& f, const Var& v);
+
 // InputError when any variable carries sample_dimension or instance_dimension (CF Appendix
 // H.2.4/H.2.5): said before anything else fails.
 void refuse_ragged(const File& f);

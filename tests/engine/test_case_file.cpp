@@ -106,7 +106,7 @@ TEST_CASE("case-file mistakes are named with file, line and key") {
         "2147483647");
   CHECK(message("[airshed]", "[airshd]") ==
         "case.toml:4: (top level): unknown key \"airshd\"; expected one of name, title, invented, "
-        "time_zone, airshed, met, model, pollutants, sectors, standards, diagnostics, output, "
+        "time_zone, airshed, met, model, pollutants, sectors, standards, diagnostics, grid, output, "
         "scenario, ensemble, cut (did you mean \"airshed\"?)");
 }
 

@@ -119,6 +119,9 @@ struct CaseSpec {
   std::optional<EmissionScenario> scenario;  // [scenario]: sectors scaled from a start time
   std::optional<EnsembleSpec> ensemble;      // [ensemble]: met members run beside [met]
   std::optional<CutRequest> cut;             // [cut]: the exact emission cut asked for
+  // Where the case's [grid] table is ("file:line: (top level) grid"), "" without one: a grid
+  // case is read by grid/grid_case.hpp and run by `lidbox grid`, never as a point.
+  std::string grid_table;
 };
 
 // Reads and checks a case file. Relative paths inside it are resolved against its folder.

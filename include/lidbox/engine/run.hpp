@@ -122,6 +122,12 @@ Forcing build_forcing(const CaseSpec& c, const MetSeries& met, std::vector<HourR
 RunResult run_case(const CaseSpec& c, const MetSeries& met, const ProgressFn& progress = {},
                    const RunStreaming& streaming = {});
 
+// The state at the start of hour 0 exactly as run_case starts from it: spun up on the first day
+// of `F` (spin_up_days, spin_up_converged and spin_up_last_change are set in `spin`), or set from
+// the case's initial values. For callers that step many boxes themselves (grid runs).
+BoxState start_state(const CaseSpec& c, const MetSeries& met, const Forcing& F, const BoxEngine& engine,
+                     RunResult& spin, const ProgressFn& progress = {});
+
 // Reads the case's met file (CSV) with the case's settings.
 MetSeries read_case_met(const CaseSpec& c);
 
