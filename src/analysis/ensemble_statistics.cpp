@@ -239,8 +239,8 @@ EnsembleOutcome forecast_ensemble(const CaseSpec& c, const MetSeries& determinis
   std::vector<RunResult> runs = run_ensemble(c, met.members, 0, progress);
   EnsemblePercentiles percentiles(runs, c.ensemble->percentiles);
   EnsembleRules rules = ensemble_rules(c, runs, rule_sets, c.ensemble->kernel_dressing);
-  return {std::move(met.labels), std::move(runs), std::move(percentiles), std::move(rules),
-          c.ensemble->kernel_dressing};
+  return {std::move(met.labels),  std::move(met.members), std::move(runs),
+          std::move(percentiles), std::move(rules),       c.ensemble->kernel_dressing};
 }
 
 }  // namespace lidbox

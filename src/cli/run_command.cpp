@@ -14,6 +14,7 @@
 #include "lidbox/report/ensemble_report.hpp"
 #include "lidbox/report/run_netcdf.hpp"
 #include "lidbox/report/run_report.hpp"
+#include "lidbox/report/cut_report.hpp"
 #include "progress.hpp"
 
 namespace lidbox::cli {
@@ -67,13 +68,20 @@ void add_run_command(CLI::App& app, int& exit_code) {
     const DiagnosticsResult days = diagnose_met(met, c.met.reading, c.met.hour_label, c.zone, diag);
     std::vector<OutputFile> files = {{"summary.txt", std::move(w.summary)}};
     append_diagnostics_outputs(files, diag, days);
+    const auto rule_sets = w.standards ? w.standards->options.rule_sets : std::vector<RuleSet>{};
+    std::optional<EnsembleOutcome> ens;
     if (c.ensemble) {
-      const auto ens = forecast_ensemble(
-          c, met, w.standards ? w.standards->options.rule_sets : std::vector<RuleSet>{},
-          [&progress](double f) { progress.update(f, "ensemble"); });
+      ens = forecast_ensemble(c, met, rule_sets,
+                              [&progress](double f) { progress.update(f, "ensemble"); });
       progress.finish();
-      append_section(files, "summary.txt", render_ensemble_summary(c, ens));
-      for (auto& f : render_ensemble_outputs(c, ens)) files.push_back(std::move(f));
+      append_section(files, "summary.txt", render_ensemble_summary(c, *ens));
+      for (auto& f : render_ensemble_outputs(c, *ens)) files.push_back(std::move(f));
+    }
+    if (c.cut) {
+      const EmissionCut cut =
+          compute_emission_cut(c, met, ens ? ens->member_met : std::vector<MetSeries>{}, rule_sets);
+      append_section(files, "summary.txt", render_cut_summary(c, cut));
+      files.push_back({"cut.csv", render_cut_csv(c, cut)});
     }
     for (const auto& f : files) out.write_whole(f.name, f.content);
     const auto written = out.publish();

@@ -565,18 +565,15 @@ void read_diagnostics(const TomlTable& top, const std::string& base_dir, CaseSpe
   if (!r) return;
   auto resolve = [&base_dir](std::string v) {
     const std::filesystem::path p(v);
-    if (p.extension() == ".toml" && p.is_relative())
-      v = (std::filesystem::path(base_dir) / p).string();
+    if (p.extension() == ".toml" && p.is_relative()) v = (std::filesystem::path(base_dir) / p).string();
     return v;
   };
-  if (auto t = r->optional_string("ventilation_table"))
-    c.diagnostics.ventilation_table = t->empty() ? "" : resolve(*t);
+  if (auto t = r->optional_string("ventilation_table")) c.diagnostics.ventilation_table = t->empty() ? "" : resolve(*t);
   for (const auto& s : r->string_array("schemes")) c.diagnostics.schemes.push_back(resolve(s));
   if (const auto f = r->optional_table("fields", diagnostics_extra_fields())) {
     if (c.met.format != MetFormat::netcdf) {
-      throw InputError(
-          r->where("fields"), "fields for a CSV met file",
-          "fields only with NetCDF met; a CSV file names its columns after the fields");
+      throw InputError(r->where("fields"), "fields for a CSV met file",
+                       "fields only with NetCDF met; a CSV file names its columns after the fields");
     }
     for (const auto& field : diagnostics_extra_fields()) {
       if (auto v = f->optional_string(field)) c.diagnostics.fields[field] = *v;
@@ -592,21 +589,24 @@ void read_output(const TomlTable& top, CaseSpec& c) {
   c.netcdf_output = r->optional_bool("netcdf").value_or(false);
 }
 
-// [scenario] and [ensemble]: their readers live with their concepts.
+// [scenario], [ensemble] and [cut]: their readers live with their concepts.
 void read_forecast_tables(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
   std::vector<std::string> sectors;
   for (const auto& s : c.sectors) sectors.push_back(s.name);
   c.scenario = read_emission_scenario(top, sectors, c.zone);
   c.ensemble = read_ensemble_spec(top, base_dir);
+  const std::size_t listed =
+      c.ensemble && !c.ensemble->netcdf_members ? c.ensemble->files.size() : 0;
+  c.cut = read_cut_request(top, sectors, c.zone, c.ensemble.has_value(), listed);
 }
 
 }  // namespace
 
 CaseSpec parse_case(const std::string& text, const std::string& file, const std::string& base_dir) {
   const TomlDocument doc(text, file);
-  const TomlTable top(
-      doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model", "pollutants",
-            "sectors", "standards", "diagnostics", "output", "scenario", "ensemble"});
+  const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
+                            "pollutants", "sectors", "standards", "diagnostics", "output",
+                            "scenario", "ensemble", "cut"});
   CaseSpec c;
   c.file = file;
   read_top_level(top, c);

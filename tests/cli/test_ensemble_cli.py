@@ -64,7 +64,7 @@ def test_demo_against_single_member_runs():
         text = demo_copy(d)
         p = run(["run", write_case(d, text), "-o", "out"], d)
         check(p.returncode == 0, "forecast demo exits 0 (stderr: %s)" % p.stderr.strip())
-        for name in ("ensemble_hourly.csv", "ensemble_days.csv", "ensemble_episodes.csv"):
+        for name in ("ensemble_hourly.csv", "ensemble_days.csv", "ensemble_episodes.csv", "cut.csv"):
             check(os.path.isfile(os.path.join(d, "out", name)), "ensemble run writes " + name)
         check("Ensemble 12 members (forecast/member-01.csv ... forecast/member-12.csv)" in p.stdout,
               "summary names the members")
@@ -72,11 +72,11 @@ def test_demo_against_single_member_runs():
         ens = read_csv(os.path.join(d, "out", "ensemble_hourly.csv"))
         check(len(ens) == 120, "120 hourly percentile rows")
         # Each member alone: the same case with the member as its [met] file and no ensemble.
-        single = text.split("[ensemble]")[0] + "[model]" + text.split("[model]")[1]
+        single = text.split("[ensemble]")[0] + "[model]" + text.split("[model]")[1].split("[cut]")[0]
         members = []
         for m in range(1, 13):
             case = single.replace('file = "forecast/control.csv"', 'file = "forecast/member-%02d.csv"' % m)
-            pm = run(["run", write_case(d, case, "m%02d.toml" % m), "-o", "m%02d" % m, "-q"], d)
+            pm = run(["run", write_case(d, case, "m%02d.toml" % m), "-o", "m%02d" % m, "-q", "--netcdf"], d)
             check(pm.returncode == 0, "member %d alone exits 0" % m)
             members.append([float(r["PM10_hour_mean [ug m-3]"]) for r in read_csv(os.path.join(d, "m%02d" % m, "hourly.csv"))])
         x = np.array(members)
@@ -91,6 +91,30 @@ def test_demo_against_single_member_runs():
         ref_mean = x.mean(axis=0)
         got_mean = np.array([float(r["PM10_member_mean [ug m-3]"]) for r in ens])
         check(float(np.max(np.abs(got_mean - ref_mean) / ref_mean)) < 2e-6, "member mean equals numpy's mean")
+        # ensemble.nc opens in xarray with its realization dimension, and each member's hour means
+        # are those of the member run alone (its hourly.nc), to rounding.
+        try:
+            import xarray as xr
+        except ImportError:
+            print("xarray missing: ensemble.nc not checked")
+            return
+        with xr.open_dataset(os.path.join(d, "out", "ensemble.nc")) as ens_nc:
+            check(ens_nc.sizes["realization"] == 12 and ens_nc.sizes["time"] == 120, "ensemble.nc: 12 realizations x 120 h")
+            worst = 0.0
+            for m in range(1, 13):
+                with xr.open_dataset(os.path.join(d, "m%02d" % m, "hourly.nc")) as one:
+                    a = ens_nc["PM10_hour_mean"].sel(realization=m).values
+                    b = one["PM10"].values
+                    worst = max(worst, float(np.max(np.abs(a - b) / b)))
+            check(worst < 1e-12, "ensemble.nc members equal single-member runs (worst %.2g)" % worst)
+            ref = np.percentile(ens_nc["PM10_hour_mean"].values, 95, axis=0)
+            got = ens_nc["PM10_percentile"].sel(percentile=95.0).values
+            check(float(np.max(np.abs(got - ref) / ref)) < 1e-12, "ensemble.nc percentiles equal numpy's")
+            days = read_csv(os.path.join(d, "out", "ensemble_days.csv"))
+            row = [r for r in days if r["rule"] == "PM10-day" and r["day_lst"] == "2026-02-12"][0]
+            k = [i for i, r in enumerate(ens_nc["rule_id"].values) if r.decode() == "eu-2008-50 PM10-day"][0]
+            p = float(ens_nc["exceedance_probability"].values[k, 3])
+            check(abs(p - float(row["probability_member_count"])) < 1e-4, "ensemble.nc probability equals the table's")
 
 
 def expect_error(name, message, edit, prepare=None):
@@ -136,6 +160,21 @@ def test_bad_inputs():
         "case.toml:22: [ensemble] percentiles: 105 at position 5; expected rising percentiles from 0 to 100, "
         "such as [5, 25, 50, 75, 95]",
         lambda t: t.replace("percentiles = [5, 25, 50, 75, 95]", "percentiles = [5, 25, 50, 75, 105]"))
+
+    expect_error(
+        "a cut start outside the run",
+        "case.toml:71: [cut] start: 2026-02-20T01:00:00Z, outside the run; expected the start of an hour from "
+        "2026-02-09T07:00:00Z to 2026-02-14T06:00:00Z",
+        lambda t: t.replace('start = "2026-02-10T18:00:00-07:00"', 'start = "2026-02-19T18:00:00-07:00"'))
+    expect_error(
+        "a sector that does not exist",
+        "case.toml:70: [cut] sectors: no sector \"home_heatng\" (did you mean \"home_heating\"?); expected one "
+        "of the case's sectors: traffic, home_heating, industry",
+        lambda t: t.replace('sectors = ["home_heating"]', 'sectors = ["home_heatng"]'))
+    expect_error(
+        "a member count the ensemble cannot have",
+        "case.toml:72: [cut] target: at most 12 of 12 members, which every scale meets; expected a count from 0 to 11",
+        lambda t: t.replace("target = { at_most_members = 1 }", "target = { at_most_members = 12 }"))
 
 
 test_demo_against_single_member_runs()

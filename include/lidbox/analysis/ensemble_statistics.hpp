@@ -115,6 +115,7 @@ EnsembleRules ensemble_rules(const CaseSpec& c, const std::vector<RunResult>& me
 // A whole ensemble forecast: the members read (ensemble.hpp), run side by side, and judged.
 struct EnsembleOutcome {
   std::vector<std::string> labels;  // per member
+  std::vector<MetSeries> member_met;
   std::vector<RunResult> members;
   EnsemblePercentiles percentiles;
   EnsembleRules rules;

@@ -16,6 +16,7 @@
 #include "lidbox/base/concentration_units.hpp"
 #include "lidbox/base/time.hpp"
 #include "lidbox/engine/box_model.hpp"
+#include "lidbox/engine/cut_request.hpp"
 #include "lidbox/engine/emission_scenario.hpp"
 #include "lidbox/engine/emissions.hpp"
 #include "lidbox/engine/ensemble_spec.hpp"
@@ -117,6 +118,7 @@ struct CaseSpec {
   bool invented = false;                // the case says its scenario is invented
   std::optional<EmissionScenario> scenario;  // [scenario]: sectors scaled from a start time
   std::optional<EnsembleSpec> ensemble;      // [ensemble]: met members run beside [met]
+  std::optional<CutRequest> cut;             // [cut]: the exact emission cut asked for
 };
 
 // Reads and checks a case file. Relative paths inside it are resolved against its folder.
