@@ -53,10 +53,29 @@ bool stale_temporary(const std::string& entry, const std::string& prefix) {
 // The files a run writes, in the order a run lists them (tables, summary, chart, standards,
 // NetCDF); "*" stands for the window length of rolling_<k>h files.
 const std::vector<std::string>& run_output_order() {
-  static const std::vector<std::string> names = {
-      "hourly.csv",  "budget.csv",   "summary.txt", "chart.svg", "limits.csv",    "daily.csv",
-      "periods.csv", "episodes.csv", "aqi.csv",     "aqhi.csv",  "rolling_*.csv", "report.md",
-      "report.json", "hourly.nc",    "budget.nc",   "daily.nc",  "rolling_*.nc"};
+  static const std::vector<std::string> names = {"hourly.csv",
+                                                 "budget.csv",
+                                                 "summary.txt",
+                                                 "chart.svg",
+                                                 "limits.csv",
+                                                 "daily.csv",
+                                                 "periods.csv",
+                                                 "episodes.csv",
+                                                 "aqi.csv",
+                                                 "aqhi.csv",
+                                                 "rolling_*.csv",
+                                                 "report.md",
+                                                 "report.json",
+                                                 "stagnation.csv",
+                                                 "stagnation_episodes.csv",
+                                                 "hourly.nc",
+                                                 "budget.nc",
+                                                 "daily.nc",
+                                                 "rolling_*.nc",
+                                                 "ensemble_hourly.csv",
+                                                 "ensemble_days.csv",
+                                                 "ensemble_episodes.csv",
+                                                 "cut.csv"};
   return names;
 }
 

@@ -57,8 +57,6 @@ void add_run_command(CLI::App& app, int& exit_code) {
                        "a point case for `lidbox run`; run a grid case with `lidbox grid`");
     }
     const MetSeries met = read_case_met(c);
-    const DiagnosticsSetup diag =
-        load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
     // The output folder is checked and its temporary made before the run, so a bad place
     // fails at once rather than after a long run.
     OutputFolder out(opt->output_dir.empty() ? c.output_directory : opt->output_dir);
@@ -70,6 +68,8 @@ void add_run_command(CLI::App& app, int& exit_code) {
     o.progress = [&progress](double f, const char* stage) { progress.update(f, stage); };
     o.after_run = [&progress] { progress.finish(); };
     RunWritten w = run_and_write(out, c, met, o);
+    const DiagnosticsSetup diag =
+        load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
     const DiagnosticsResult days = diagnose_met(met, c.met.reading, c.met.hour_label, c.zone, diag);
     std::vector<OutputFile> files = {{"summary.txt", std::move(w.summary)}};
     append_diagnostics_outputs(files, diag, days);

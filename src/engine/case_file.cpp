@@ -568,18 +568,15 @@ void read_diagnostics(const TomlTable& top, const std::string& base_dir, CaseSpe
   if (!r) return;
   auto resolve = [&base_dir](std::string v) {
     const std::filesystem::path p(v);
-    if (p.extension() == ".toml" && p.is_relative())
-      v = (std::filesystem::path(base_dir) / p).string();
+    if (p.extension() == ".toml" && p.is_relative()) v = (std::filesystem::path(base_dir) / p).string();
     return v;
   };
-  if (auto t = r->optional_string("ventilation_table"))
-    c.diagnostics.ventilation_table = t->empty() ? "" : resolve(*t);
+  if (auto t = r->optional_string("ventilation_table")) c.diagnostics.ventilation_table = t->empty() ? "" : resolve(*t);
   for (const auto& s : r->string_array("schemes")) c.diagnostics.schemes.push_back(resolve(s));
   if (const auto f = r->optional_table("fields", diagnostics_extra_fields())) {
     if (c.met.format != MetFormat::netcdf) {
-      throw InputError(
-          r->where("fields"), "fields for a CSV met file",
-          "fields only with NetCDF met; a CSV file names its columns after the fields");
+      throw InputError(r->where("fields"), "fields for a CSV met file",
+                       "fields only with NetCDF met; a CSV file names its columns after the fields");
     }
     for (const auto& field : diagnostics_extra_fields()) {
       if (auto v = f->optional_string(field)) c.diagnostics.fields[field] = *v;
