@@ -11,6 +11,9 @@
 #include "lidbox/grid/grid_run.hpp"
 
 #ifdef LIDBOX_MPI
+// The C API only: Open MPI's deprecated C++ bindings do not compile clean under -Wextra.
+#define OMPI_SKIP_MPICXX 1
+#define MPICH_SKIP_MPICXX 1
 #include <mpi.h>
 #endif
 

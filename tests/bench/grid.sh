@@ -1,0 +1,70 @@
+#!/bin/bash
+# Benchmark piece for grid runs (never a ctest; the invented file takes disk and minutes):
+# an invented ERA5-like grid of HOURS x 100 x 100 cells (LIDBOX_BENCH_GRID_HOURS, default 8760)
+# of packed shorts; `lidbox grid` against a plain read of the same variables and against a numpy
+# loop stepping the same box in every cell; 2 threads against 1; peak memory for the series and
+# for four times it; MPI -np 2 against 2 threads when build/mpi/lidbox exists.
+# Called by run.sh with <build-dir> <source-dir>.
+set -euo pipefail
+build=$(realpath "$1")
+src=$(realpath "$2")
+py=${LIDBOX_PYTHON:-/usr/bin/python3}
+hours=${LIDBOX_BENCH_GRID_HOURS:-8760}
+work="$build/bench-grid"
+mkdir -p "$work"
+[ -f "$work/grid-$hours.nc" ] || "$py" "$src/tests/bench/make_bench_grid.py" "$work/grid-$hours.nc" "$hours"
+[ -f "$work/grid-$((4 * hours)).nc" ] || "$py" "$src/tests/bench/make_bench_grid.py" "$work/grid-$((4 * hours)).nc" $((4 * hours))
+case_for() {  # <grid file> <case path>
+  cat > "$2" <<CASE
+# INVENTED benchmark case
+name = "bench-grid"
+invented = true
+time_zone = "UTC"
+[airshed]
+x_side = "10 km"
+y_side = "10 km"
+[met]
+file = "$1"
+[model]
+residual_layer = false
+[pollutants.X]
+unit = "ug/m3"
+background = "0 ug/m3"
+free_troposphere = "0 ug/m3"
+[diagnostics]
+schemes = ["korshover-angell-1982-10m"]
+[grid]
+periods = ["year", "month"]
+exceedance_level = "20 s/m"
+CASE
+}
+case_for "$work/grid-$hours.nc" "$work/case-1.toml"
+case_for "$work/grid-$((4 * hours)).nc" "$work/case-4.toml"
+timed() {  # <label> <command...>: prints seconds and peak RSS in MB
+  local t0 t1 rss
+  t0=$(date +%s.%N)
+  /usr/bin/time -f "%M" -o "$work/rss" "${@:2}" > /dev/null
+  t1=$(date +%s.%N)
+  rss=$(cat "$work/rss")
+  echo "$1 $(echo "$t1 - $t0" | bc) $((rss / 1024))"
+}
+read -r _ t_read _ < <(timed read "$py" "$src/tests/bench/bench_grid_reference.py" read "$work/grid-$hours.nc")
+read -r _ t_numpy m_numpy < <(timed numpy "$py" "$src/tests/bench/bench_grid_reference.py" numpy "$work/grid-$hours.nc")
+read -r _ t1 m1 < <(timed one "$build/lidbox" grid "$work/case-1.toml" -o "$work/out1" --threads 1 -q)
+read -r _ t2 m2 < <(timed two "$build/lidbox" grid "$work/case-1.toml" -o "$work/out2" --threads 2 -q)
+read -r _ t4 m4 < <(timed four "$build/lidbox" grid "$work/case-4.toml" -o "$work/out4" --threads 2 -q)
+echo "grid $hours h x 100 x 100 cells (packed shorts), whole processes:"
+echo "  plain read of blh/u10/v10 (netCDF4)   $t_read s"
+echo "  numpy loop, same box in every cell    $t_numpy s, peak $m_numpy MB"
+echo "  lidbox grid, 1 thread                 $t1 s, peak $m1 MB"
+echo "  lidbox grid, 2 threads                $t2 s, peak $m2 MB"
+echo "  lidbox grid, 4 x the hours, 2 threads $t4 s, peak $m4 MB"
+echo "  ratio lidbox (2 threads) / plain read: $(echo "scale=2; $t2 / $t_read" | bc) (target <= 1.5)"
+echo "  speed-up over the numpy loop:         $(echo "scale=2; $t_numpy / $t2" | bc) (target >= 5)"
+echo "  2 threads against 1:                  $(echo "scale=2; $t1 / $t2" | bc) (target >= 1.7)"
+echo "  peak memory 4x hours / 1x:            $(echo "scale=3; $m4 / $m2" | bc) (target within 1.10)"
+if [ -x "$build/../mpi/lidbox" ] && command -v mpirun > /dev/null; then
+  read -r _ tm _ < <(timed mpi mpirun --allow-run-as-root --oversubscribe -np 2 "$build/../mpi/lidbox" grid "$work/case-1.toml" -o "$work/outm" --threads 1 -q)
+  echo "  MPI -np 2 (1 thread each)             $tm s; against 2 threads: $(echo "scale=2; $tm / $t2" | bc)"
+  cmp "$work/out2/maps_year.nc" "$work/outm/maps_year.nc" && echo "  MPI maps byte-identical to the threaded run"
+fi
