@@ -178,7 +178,8 @@ std::string render_ensemble_summary(const CaseSpec& c, const EnsembleOutcome& e)
 std::vector<OutputFile> render_ensemble_outputs(const CaseSpec& c, const EnsembleOutcome& e) {
   return {{"ensemble_hourly.csv", render_ensemble_hourly_csv(c, e)},
           {"ensemble_days.csv", render_ensemble_days_csv(e)},
-          {"ensemble_episodes.csv", render_ensemble_episodes_csv(e)}};
+          {"ensemble_episodes.csv", render_ensemble_episodes_csv(e)},
+          {"ensemble.nc", render_ensemble_netcdf(c, e)}};
 }
 
 }  // namespace lidbox

@@ -9,6 +9,7 @@
 
 #include "lidbox/base/caution.hpp"
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/text.hpp"
 
 namespace lidbox {
 
@@ -306,6 +307,13 @@ std::string report_json(const StandardsReport& r) {
   o << "  \"lst_offset\": " << js(format_utc_offset(opt.lst_offset_s)) << ",\n";
   o << "  \"issue_time_utc\": "
     << (opt.issue_time_utc ? js(format_utc(*opt.issue_time_utc)) : "null") << ",\n";
+  auto list = [&](const std::vector<std::string>& v) {
+    std::string out = "[";
+    for (std::size_t i = 0; i < v.size(); ++i) out += (i ? ", " : "") + js(v[i]);
+    return out + "]";
+  };
+  o << "  \"rule_sets_judging_none\": " << list(r.coverage.idle_rule_sets) << ",\n";
+  o << "  \"pollutants_judged_by_none\": " << list(r.coverage.unjudged_pollutants) << ",\n";
   json_series(o, r);
   json_rule_sets(o, r);
   json_limits(o, r);
@@ -369,6 +377,19 @@ void md_rule_sets_and_limits(std::ostringstream& o, const StandardsReport& r) {
     o << "| " << md(rs.id) << " | " << md(rs.name) << " | " << md(rs.legal_source) << " | "
       << md(rs.legal_date) << " | " << num(rs.reference.temperature_K) << " K, "
       << num(rs.reference.pressure_Pa) << " Pa | `" << md(rs.path) << "` |\n";
+  }
+  // Nothing passes silently: a rule set that judges none of the pollutants, and a pollutant no
+  // rule set judges, are named.
+  if (!r.coverage.idle_rule_sets.empty() || !r.coverage.unjudged_pollutants.empty()) {
+    o << "\n";
+    if (!r.coverage.idle_rule_sets.empty()) {
+      o << "- Rule sets that judge none of the pollutants here: "
+        << md(join(r.coverage.idle_rule_sets)) << "\n";
+    }
+    if (!r.coverage.unjudged_pollutants.empty()) {
+      o << "- Pollutants that no selected rule set judges: "
+        << md(join(r.coverage.unjudged_pollutants)) << "\n";
+    }
   }
   o << "\nRule entries say how each was verified in the `checked` column of `" << opt.file_prefix
     << "limits.csv`: SRC (seen in a published copy), MEM (from memory, not "

@@ -5,14 +5,45 @@
 #include <cmath>
 #include <cstdio>
 #include <map>
+#include <set>
 #include <sstream>
 
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/text.hpp"
+#include "lidbox/standards/pollutant.hpp"
 
 namespace lidbox {
 
+namespace {
+
+RuleCoverage rule_coverage(const NamedSeries& series, const ReportOptions& options) {
+  RuleCoverage c;
+  std::set<std::string> judged_somewhere;
+  for (const RuleSet& rs : options.rule_sets) {
+    std::set<std::string> judged;
+    for (const Limit& l : rs.limits) judged.insert(l.pollutant);
+    for (const AlertRule& a : rs.alerts) judged.insert(a.pollutant);
+    bool any = false;
+    for (const auto& [name, s] : series) any = any || judged.count(name) > 0;
+    if (!any) c.idle_rule_sets.push_back(rs.id);
+    judged_somewhere.insert(judged.begin(), judged.end());
+  }
+  for (const auto& [name, s] : series) {
+    if (!judged_somewhere.count(name)) c.unjudged_pollutants.push_back(name);
+  }
+  for (const std::string& name : options.unknown_pollutants) {
+    const std::string near = closest_name(name, pollutant_names());
+    c.unjudged_pollutants.push_back("\"" + name + "\" (not a pollutant name lidbox knows" +
+                                    (near.empty() ? "" : "; did you mean \"" + near + "\"?") + ")");
+  }
+  return c;
+}
+
+}  // namespace
+
 StandardsReport compute_standards_report(const NamedSeries& series, ReportOptions options) {
   StandardsReport r;
+  r.coverage = rule_coverage(series, options);
   const int off = options.lst_offset_s;
   for (const auto& [name, s] : series) {
     const auto valid = static_cast<std::size_t>(

@@ -76,7 +76,7 @@ def test_demo_against_single_member_runs():
         members = []
         for m in range(1, 13):
             case = single.replace('file = "forecast/control.csv"', 'file = "forecast/member-%02d.csv"' % m)
-            pm = run(["run", write_case(d, case, "m%02d.toml" % m), "-o", "m%02d" % m, "-q"], d)
+            pm = run(["run", write_case(d, case, "m%02d.toml" % m), "-o", "m%02d" % m, "-q", "--netcdf"], d)
             check(pm.returncode == 0, "member %d alone exits 0" % m)
             members.append([float(r["PM10_hour_mean [ug m-3]"]) for r in read_csv(os.path.join(d, "m%02d" % m, "hourly.csv"))])
         x = np.array(members)
@@ -91,6 +91,30 @@ def test_demo_against_single_member_runs():
         ref_mean = x.mean(axis=0)
         got_mean = np.array([float(r["PM10_member_mean [ug m-3]"]) for r in ens])
         check(float(np.max(np.abs(got_mean - ref_mean) / ref_mean)) < 2e-6, "member mean equals numpy's mean")
+        # ensemble.nc opens in xarray with its realization dimension, and each member's hour means
+        # are those of the member run alone (its hourly.nc), to rounding.
+        try:
+            import xarray as xr
+        except ImportError:
+            print("xarray missing: ensemble.nc not checked")
+            return
+        with xr.open_dataset(os.path.join(d, "out", "ensemble.nc")) as ens_nc:
+            check(ens_nc.sizes["realization"] == 12 and ens_nc.sizes["time"] == 120, "ensemble.nc: 12 realizations x 120 h")
+            worst = 0.0
+            for m in range(1, 13):
+                with xr.open_dataset(os.path.join(d, "m%02d" % m, "hourly.nc")) as one:
+                    a = ens_nc["PM10_hour_mean"].sel(realization=m).values
+                    b = one["PM10"].values
+                    worst = max(worst, float(np.max(np.abs(a - b) / b)))
+            check(worst < 1e-12, "ensemble.nc members equal single-member runs (worst %.2g)" % worst)
+            ref = np.percentile(ens_nc["PM10_hour_mean"].values, 95, axis=0)
+            got = ens_nc["PM10_percentile"].sel(percentile=95.0).values
+            check(float(np.max(np.abs(got - ref) / ref)) < 1e-12, "ensemble.nc percentiles equal numpy's")
+            days = read_csv(os.path.join(d, "out", "ensemble_days.csv"))
+            row = [r for r in days if r["rule"] == "PM10-day" and r["day_lst"] == "2026-02-12"][0]
+            k = [i for i, r in enumerate(ens_nc["rule_id"].values) if r.decode() == "eu-2008-50 PM10-day"][0]
+            p = float(ens_nc["exceedance_probability"].values[k, 3])
+            check(abs(p - float(row["probability_member_count"])) < 1e-4, "ensemble.nc probability equals the table's")
 
 
 def expect_error(name, message, edit, prepare=None):

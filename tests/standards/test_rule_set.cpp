@@ -4,6 +4,7 @@
 #include <string>
 
 #include "lidbox/base/error.hpp"
+#include "lidbox/standards/pollutant.hpp"
 #include "lidbox/standards/rule_set.hpp"
 
 using namespace lidbox;
@@ -247,4 +248,26 @@ TEST_CASE("a rule says a valid day and a covered year apart, and the old single 
                                     "allowed_exceedances = 35\nday_valid_fraction = 0.75\n"))) ==
         "local.toml:19: [[limit]] day_valid_fraction: day_valid_fraction with statistic "
         "\"hourly_value\"; expected day_valid_fraction only for statistics built from days");
+}
+
+TEST_CASE("pollutant identities are matched through the alias table and nothing else") {
+  // CF standard names: design/references.md 7.1 (both PM spellings in use). Case does not
+  // matter; a blank inside a name or an unlisted word is no match (issue 13 item 12).
+  CHECK(std::string(find_pollutant("PM2.5")->name) == "PM2.5");
+  CHECK(std::string(find_pollutant("pm25")->name) == "PM2.5");
+  CHECK(std::string(find_pollutant("pm2_5")->name) == "PM2.5");
+  CHECK(std::string(find_pollutant("mass_concentration_of_pm2p5_ambient_aerosol_in_air")->name) ==
+        "PM2.5");
+  CHECK(std::string(
+            find_pollutant("mass_concentration_of_pm10_ambient_aerosol_particles_in_air")->name) ==
+        "PM10");
+  CHECK(std::string(find_pollutant("Ozone")->name) == "O3");
+  CHECK(std::string(find_pollutant("mole_fraction_of_sulfur_dioxide_in_air")->name) == "SO2");
+  CHECK(find_pollutant("fine_dust") == nullptr);
+  CHECK(find_pollutant("PM 10") == nullptr);
+  CHECK(find_pollutant("P.M.1.0") == nullptr);  // the former folding took this for PM10
+  // In a rule file an unknown name is an error with the hint.
+  CHECK(error_of(good_file(replaced(kLimit, "\"PM10\"", "\"PM 10\""))) ==
+        "local.toml:11: [[limit]] pollutant: unknown pollutant \"PM 10\"; expected one of PM2.5, "
+        "PM10, O3, NO2, SO2, CO, NO, benzene (did you mean \"PM10\"?)");
 }

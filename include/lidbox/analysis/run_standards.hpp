@@ -23,7 +23,9 @@ NamedSeries run_series(const CaseSpec& c, const RunResult& r, std::vector<std::s
 std::optional<StandardsReport> run_standards(const CaseSpec& c, const RunResult& r,
                                              std::optional<UtcSeconds> issue_time_override);
 
-// A few lines for the printed summary: limits exceeded per rule set, alert episodes.
+// A few lines for the printed summary: limits exceeded per rule set, values above a level
+// (an annual value above its level in an incomplete year said as such), rule sets that judge
+// none of the pollutants, pollutants no rule set judges, alert episodes.
 std::string standards_summary(const StandardsReport& report);
 
 }  // namespace lidbox

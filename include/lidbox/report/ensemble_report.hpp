@@ -3,6 +3,8 @@
 //                          means and the member mean, in the reporting unit
 //   ensemble_days.csv      per rule and LST day: members counted, members exceeding, the
 //                          probability by member counting (and kernel-dressed, when asked)
+//   ensemble.nc            CF-NetCDF: per-member hour means on a `realization` dimension, the
+//                          percentiles and the member mean, the daily probabilities per rule
 //   ensemble_episodes.csv  per alert rule: members with an episode, the probability, and the
 //                          spread of the first episode's start and length
 // and a summary section with the headline and the caution that a finite ensemble proves neither
@@ -20,6 +22,8 @@ namespace lidbox {
 std::string render_ensemble_hourly_csv(const CaseSpec& c, const EnsembleOutcome& e);
 std::string render_ensemble_days_csv(const EnsembleOutcome& e);
 std::string render_ensemble_episodes_csv(const EnsembleOutcome& e);
+// ensemble.nc's bytes.
+std::string render_ensemble_netcdf(const CaseSpec& c, const EnsembleOutcome& e);
 // The summary section (ends with a newline).
 std::string render_ensemble_summary(const CaseSpec& c, const EnsembleOutcome& e);
 

@@ -20,7 +20,10 @@ struct PollutantInfo {
   double molar_mass_g_mol;  // 0 for aerosols
 };
 
-// Canonical entry for a name or a common spelling ("pm25", "PM2_5", "ozone", "so2"), or nullptr.
+// Canonical entry for a name, matched explicitly through an alias table, without regard to case:
+// the canonical names, common spellings (PM2.5 / PM25 / PM2_5 / PM2p5, ozone, "sulfur dioxide",
+// ...) and the CF standard names (mass_concentration_of_..._in_air, mole_fraction_of_..._in_air,
+// both PM spellings). Anything else is nullptr: "fine_dust" or "PM 10" are not guessed.
 const PollutantInfo* find_pollutant(std::string_view name);
 // The same, but an unknown name is an InputError naming `where`, with a "did you mean" hint.
 const PollutantInfo& pollutant_or_throw(std::string_view name, std::string_view where);

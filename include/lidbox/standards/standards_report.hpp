@@ -39,8 +39,11 @@ struct ReportOptions {
   bool with_aqi = true;
   bool with_aqhi = true;
   std::vector<RollingRequest> rolling;  // extra running-mean tables (a request given twice: once)
-  std::string input_label;              // e.g. "observations obs.csv", "model run case.toml"
-  std::string file_prefix;              // written files are file_prefix + name ("obs_limits.csv")
+  // Names of the input's pollutants that match no pollutant identity (pollutant.hpp), e.g. a
+  // case's "fine_dust": no rule can judge them, and the report says so.
+  std::vector<std::string> unknown_pollutants;
+  std::string input_label;  // e.g. "observations obs.csv", "model run case.toml"
+  std::string file_prefix;  // written files are file_prefix + name ("obs_limits.csv")
 };
 
 struct SeriesSummary {
@@ -64,6 +67,14 @@ struct RollingTable {
   RunningMeans means;
 };
 
+// Which pollutants the selected rule sets judge: nothing passes silently.
+struct RuleCoverage {
+  std::vector<std::string> idle_rule_sets;  // selected rule sets that judge none of the pollutants
+  // Pollutants no selected rule set judges (limits or alerts): the known ones by canonical name,
+  // then the unknown names as given, each with a hint where one is close ("PM 10" -> "PM10").
+  std::vector<std::string> unjudged_pollutants;
+};
+
 struct StandardsReport {
   ReportOptions options;
   std::vector<SeriesSummary> series;
@@ -74,6 +85,7 @@ struct StandardsReport {
   std::vector<AqhiHour> aqhi;
   std::vector<Episode> episodes;
   std::vector<RollingTable> rolling;
+  RuleCoverage coverage;
 };
 
 // Computes every table. InputError for series the rules cannot use (unit conversions).
