@@ -102,6 +102,9 @@ HourResult BoxEngine::make_result() const {
   r.parts = parts();
   r.mean_c_g_m3.assign(pollutants() * parts(), 0.0);
   r.budget.assign(pollutants(), BudgetTerms{});
+  r.work_state = make_state(options_.min_mixing_height_m);
+  r.work_mean.assign(pollutants() * parts(), 0.0);
+  r.work_budget.assign(pollutants(), BudgetTerms{});
   return r;
 }
 
@@ -332,31 +335,231 @@ void BoxEngine::exact_step(BoxState& s, double dt, double f, double fa, const Fo
   }
 }
 
-void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour,
-                          HourResult& out) const {
+namespace {
+
+constexpr double kHour = 3600.0;
+
+void clear(HourResult& out) {
   std::fill(out.mean_c_g_m3.begin(), out.mean_c_g_m3.end(), 0.0);
   std::fill(out.budget.begin(), out.budget.end(), BudgetTerms{});
   out.mixing_height_mean_m = out.wind_speed_mean_m_s = out.flushing_rate_mean_per_s = 0.0;
   out.wind_u_mean_m_s = out.wind_v_mean_m_s = out.ventilation_mean_m2_s = 0.0;
   out.calm_floor = out.lid_floor = false;
   out.substeps = 0;
+}
 
-  constexpr double T = 3600.0;
-  const double split = F.clock_split_s > 0 ? static_cast<double>(F.clock_split_s) : T;
+// h and speed are the values used (after the floors); the ventilation coefficient is u H of the
+// met as given (h_met, u, v), so that the floors do not hide the poorest hours.
+void accumulate_met(HourResult& out, double dt, double h, double h_met, double u, double v,
+                    double speed, double f) {
+  const double w = dt / kHour;
+  out.mixing_height_mean_m += h * w;
+  out.wind_u_mean_m_s += u * w;
+  out.wind_v_mean_m_s += v * w;
+  out.wind_speed_mean_m_s += speed * w;
+  out.flushing_rate_mean_per_s += f * w;
+  out.ventilation_mean_m2_s += std::hypot(u, v) * h_met * w;
+}
+
+// Linear interpolation that returns the end values exactly at x = 0 and x = 1, so that the
+// coarse and the fine solution of an hour end on the same lid.
+inline double lerp(double a, double b, double x) {
+  return x >= 1.0 ? b : a + (b - a) * x;
+}
+
+// Adds t (seconds into the hour) to the break list when it lies strictly inside the hour.
+void add_break(double t, double* breaks, int& n) {
+  if (t > 1e-6 && t < kHour - 1e-6 && n < BoxEngine::kMaxBreaks) breaks[n++] = t;
+}
+
+// Where a linear function a + (b - a) x crosses `level` strictly inside (0, 1).
+void add_crossing(double a, double b, double level, double* breaks, int& n) {
+  if ((a - level) * (b - level) < 0.0) add_break(kHour * (a - level) / (a - b), breaks, n);
+}
+
+}  // namespace
+
+int BoxEngine::hour_breaks(const BoxState& s, const Forcing& F, std::size_t hour,
+                           double* breaks) const {
+  int n = 0;
+  breaks[n++] = 0.0;
+  if (F.clock_split_s > 0) add_break(static_cast<double>(F.clock_split_s), breaks, n);
+  const double h0 = F.mixing_height_m[hour], h1 = F.mixing_height_m[hour + 1];
+  const double u0 = F.wind_u_m_s[hour], u1 = F.wind_u_m_s[hour + 1];
+  const double v0 = F.wind_v_m_s[hour], v1 = F.wind_v_m_s[hour + 1];
+  // f = |wx|/Lx + |wy|/Ly has a kink where a component along a side changes sign.
+  add_crossing(u0 * geometry_.ex_u + v0 * geometry_.ex_v, u1 * geometry_.ex_u + v1 * geometry_.ex_v,
+               0.0, breaks, n);
+  add_crossing(u0 * geometry_.ey_u + v0 * geometry_.ey_v, u1 * geometry_.ey_u + v1 * geometry_.ey_v,
+               0.0, breaks, n);
+  // The calm floor: |w(x)|^2 = floor^2 is a quadratic in x.
+  {
+    const double du = u1 - u0, dv = v1 - v0, w2 = options_.min_wind_m_s * options_.min_wind_m_s;
+    const double qa = du * du + dv * dv, qb = 2.0 * (u0 * du + v0 * dv),
+                 qc = u0 * u0 + v0 * v0 - w2;
+    if (qa > 0.0) {
+      const double disc = qb * qb - 4.0 * qa * qc;
+      if (disc > 0.0) {
+        const double r = std::sqrt(disc);
+        add_break(kHour * (-qb - r) / (2.0 * qa), breaks, n);
+        add_break(kHour * (-qb + r) / (2.0 * qa), breaks, n);
+      }
+    }
+  }
+  // The lid floor, and a rising lid reaching the tops of the residual air (the entrained air
+  // changes there).
+  add_crossing(h0, h1, options_.min_mixing_height_m, breaks, n);
+  if (options_.residual_layer && h1 > h0) {
+    add_crossing(h0, h1, s.cycle_top_m, breaks, n);
+    if (s.residual_top_m > s.cycle_top_m) add_crossing(h0, h1, s.residual_top_m, breaks, n);
+  }
+  std::sort(breaks + 1, breaks + n);
+  // Drop breaks closer than a millisecond to the one before (a zero-length segment).
+  int m = 1;
+  for (int i = 1; i < n; ++i) {
+    if (breaks[i] - breaks[m - 1] > 1e-3) breaks[m++] = breaks[i];
+  }
+  if (kHour - breaks[m - 1] <= 1e-3) --m;
+  breaks[m] = kHour;
+  return m;  // segments [breaks[i], breaks[i + 1]), i < m
+}
+
+double BoxEngine::substep_limit_s(const Forcing& F, std::size_t hour) const {
+  if (options_.fixed_substeps_per_hour > 0) return kHour / options_.fixed_substeps_per_hour;
+  const double h0 = F.mixing_height_m[hour], h1 = F.mixing_height_m[hour + 1];
+  const double u0 = F.wind_u_m_s[hour], u1 = F.wind_u_m_s[hour + 1];
+  const double v0 = F.wind_v_m_s[hour], v1 = F.wind_v_m_s[hour + 1];
+  // Stiffest rate at either end of the hour, over all pollutants.
+  const double hmin = std::max(std::min(h0, h1), options_.min_mixing_height_m);
+  double f_ends[2];
+  HourResult no_flags;  // scalars only, never allocates
+  (void)flushing(u0, v0, f_ends[0], no_flags);
+  (void)flushing(u1, v1, f_ends[1], no_flags);
+  const double fmax = std::max(f_ends[0], f_ends[1]);
+  const double fmin = std::min(f_ends[0], f_ends[1]);
+  double lmax = fmax;
+  for (const auto& pr : processes_) {
+    lmax = std::max(lmax, fmax + pr.loss_rate_per_s + pr.deposition_velocity_m_s / hmin);
+  }
+  const double n_lambda = lmax * kHour / options_.max_lambda_dt;
+  const double n_lid = std::fabs(h1 - h0) / hmin / options_.max_relative_lid_change;
+  // The flushing rate's change over the hour (the emission flux q/H changes with the lid, the
+  // entrainment rate is constant within an hour, and the clock's change is a break).
+  const double n_flushing = (fmax - fmin) / fmin / options_.max_relative_flushing_change;
+  const double n = std::min(std::max({1.0, n_lambda, n_lid, n_flushing}),
+                            static_cast<double>(options_.max_substeps_per_hour));
+  return kHour / n;
+}
+
+void BoxEngine::interpolate(BoxState& s, const Forcing& F, std::size_t hour, const double* breaks,
+                            int segments, double step_s, int refine, HourResult& out) const {
+  const double h0 = F.mixing_height_m[hour], h1 = F.mixing_height_m[hour + 1];
+  const double u0 = F.wind_u_m_s[hour], u1 = F.wind_u_m_s[hour + 1];
+  const double v0 = F.wind_v_m_s[hour], v1 = F.wind_v_m_s[hour + 1];
+  const double split = F.clock_split_s > 0 ? static_cast<double>(F.clock_split_s) : kHour;
   const double fa_factor = options_.residual_wind_factor;
-  // h and speed are the values used (after the floors); the ventilation coefficient is u H of
-  // the met as given (h_met, u, v), so that the floors do not hide the poorest hours.
-  auto accumulate_met = [&](double dt, double h, double h_met, double u, double v, double speed,
-                            double f) {
-    out.mixing_height_mean_m += h * dt / T;
-    out.wind_u_mean_m_s += u * dt / T;
-    out.wind_v_mean_m_s += v * dt / T;
-    out.wind_speed_mean_m_s += speed * dt / T;
-    out.flushing_rate_mean_per_s += f * dt / T;
-    out.ventilation_mean_m2_s += std::hypot(u, v) * h_met * dt / T;
-  };
+  for (int g = 0; g < segments; ++g) {
+    const double t0 = breaks[g], t1 = breaks[g + 1];
+    const int half = 0.5 * (t0 + t1) >= split ? 1 : 0;
+    // Rounded up, so that no sub-step is longer than the controls allow.
+    const int m = refine * std::max(1, static_cast<int>(std::ceil((t1 - t0) / step_s - 1e-9)));
+    const double dt = (t1 - t0) / m;
+    for (int k = 0; k < m; ++k) {
+      const double ta = t0 + k * dt;
+      const double tb = k + 1 == m ? t1 : t0 + (k + 1) * dt;
+      const double xm = 0.5 * (ta + tb) / kHour;
+      // Strang splitting: lid to the midpoint height, exact step with midpoint coefficients,
+      // lid to the end height.
+      const double hm_met = lerp(h0, h1, xm);
+      const double hm = floored_height(hm_met, out);
+      const double um = lerp(u0, u1, xm);
+      const double vm = lerp(v0, v1, xm);
+      move_lid(s, hm, F, hour, out);
+      double f = 0.0;
+      const double speed = flushing(um, vm, f, out);
+      double fa = 0.0;
+      if (fa_factor > 0.0) fa = geometry_.flushing_rate(um * fa_factor, vm * fa_factor);
+      exact_step(s, tb - ta, f, fa, F, hour, half, out);
+      move_lid(s, floored_height(lerp(h0, h1, tb / kHour), out), F, hour, out);
+      accumulate_met(out, tb - ta, hm, hm_met, um, vm, speed, f);
+      ++out.substeps;
+    }
+  }
+}
 
+namespace {
+
+// (4 fine - coarse) / 3: the Richardson combination of two second-order solutions.
+inline double extrapolate(double fine, double coarse) {
+  return (4.0 * fine - coarse) / 3.0;
+}
+
+}  // namespace
+
+// Richardson extrapolation keeps every value non-negative and the state's geometry consistent
+// only when both solutions agree on the geometry and nothing turns negative; otherwise the fine
+// solution stands. Both solutions close their budgets, and the combination is linear in every
+// budget line and every stored mass, so it closes them too.
+bool BoxEngine::combine(BoxState& s, const HourResult& coarse_met, HourResult& out) const {
+  const BoxState& c = out.work_state;
+  auto same = [](double a, double b) {
+    return std::fabs(a - b) <= 1e-9 * std::max(1.0, std::fabs(a));
+  };
+  if (!same(c.mixing_height_m, s.mixing_height_m) || !same(c.cycle_top_m, s.cycle_top_m) ||
+      !same(c.residual_top_m, s.residual_top_m) || !same(c.cycle_low_m, s.cycle_low_m)) {
+    return false;
+  }
+  for (std::size_t k = 0; k < s.c_g_m3.size(); ++k) {
+    if (extrapolate(s.c_g_m3[k], c.c_g_m3[k]) < 0.0 ||
+        extrapolate(s.cr_g_m3[k], c.cr_g_m3[k]) < 0.0 ||
+        extrapolate(s.older_g_m3[k], c.older_g_m3[k]) < 0.0 ||
+        extrapolate(out.mean_c_g_m3[k], out.work_mean[k]) < 0.0) {
+      return false;
+    }
+  }
+  constexpr double BudgetTerms::*kLines[] = {&BudgetTerms::emitted,
+                                             &BudgetTerms::advected_in,
+                                             &BudgetTerms::advected_out,
+                                             &BudgetTerms::reacted,
+                                             &BudgetTerms::deposited,
+                                             &BudgetTerms::entrained_from_residual,
+                                             &BudgetTerms::entrained_from_free_troposphere,
+                                             &BudgetTerms::detrained,
+                                             &BudgetTerms::residual_reacted,
+                                             &BudgetTerms::residual_advected_in,
+                                             &BudgetTerms::residual_advected_out,
+                                             &BudgetTerms::vented_aloft};
+  for (std::size_t p = 0; p < out.budget.size(); ++p) {
+    for (auto line : kLines) {
+      if (extrapolate(out.budget[p].*line, out.work_budget[p].*line) < 0.0) return false;
+    }
+  }
+  for (std::size_t k = 0; k < s.c_g_m3.size(); ++k) {
+    s.c_g_m3[k] = extrapolate(s.c_g_m3[k], c.c_g_m3[k]);
+    s.cr_g_m3[k] = extrapolate(s.cr_g_m3[k], c.cr_g_m3[k]);
+    s.older_g_m3[k] = extrapolate(s.older_g_m3[k], c.older_g_m3[k]);
+    out.mean_c_g_m3[k] = extrapolate(out.mean_c_g_m3[k], out.work_mean[k]);
+  }
+  for (std::size_t p = 0; p < out.budget.size(); ++p) {
+    for (auto line : kLines) {
+      out.budget[p].*line = extrapolate(out.budget[p].*line, out.work_budget[p].*line);
+    }
+  }
+  out.mixing_height_mean_m = extrapolate(out.mixing_height_mean_m, coarse_met.mixing_height_mean_m);
+  out.wind_u_mean_m_s = extrapolate(out.wind_u_mean_m_s, coarse_met.wind_u_mean_m_s);
+  out.wind_v_mean_m_s = extrapolate(out.wind_v_mean_m_s, coarse_met.wind_v_mean_m_s);
+  out.wind_speed_mean_m_s = extrapolate(out.wind_speed_mean_m_s, coarse_met.wind_speed_mean_m_s);
+  out.flushing_rate_mean_per_s =
+      extrapolate(out.flushing_rate_mean_per_s, coarse_met.flushing_rate_mean_per_s);
+  out.ventilation_mean_m2_s =
+      extrapolate(out.ventilation_mean_m2_s, coarse_met.ventilation_mean_m2_s);
+  return true;
+}
+
+void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour, HourResult& out) const {
+  clear(out);
   if (options_.reading == MetReading::hour_average) {
+    const double split = F.clock_split_s > 0 ? static_cast<double>(F.clock_split_s) : kHour;
     const double h_met = F.mixing_height_m[hour];
     const double h = floored_height(h_met, out);
     move_lid(s, h, F, hour, out);
@@ -365,63 +568,51 @@ void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour,
     double f = 0.0;
     const double speed = flushing(u, v, f, out);
     double fa = 0.0;
+    const double fa_factor = options_.residual_wind_factor;
     if (fa_factor > 0.0) fa = geometry_.flushing_rate(u * fa_factor, v * fa_factor);
     exact_step(s, split, f, fa, F, hour, 0, out);
-    if (split < T) exact_step(s, T - split, f, fa, F, hour, 1, out);
-    out.substeps = split < T ? 2 : 1;
-    accumulate_met(T, h, h_met, u, v, speed, f);
+    if (split < kHour) exact_step(s, kHour - split, f, fa, F, hour, 1, out);
+    out.substeps = split < kHour ? 2 : 1;
+    accumulate_met(out, kHour, h, h_met, u, v, speed, f);
   } else {
-    const double h0 = F.mixing_height_m[hour], h1 = F.mixing_height_m[hour + 1];
-    const double u0 = F.wind_u_m_s[hour], u1 = F.wind_u_m_s[hour + 1];
-    const double v0 = F.wind_v_m_s[hour], v1 = F.wind_v_m_s[hour + 1];
-    int n = options_.fixed_substeps_per_hour;
-    if (n <= 0) {
-      // Stiffest rate at either end of the hour, over all pollutants.
-      const double hmin = std::max(std::min(h0, h1), options_.min_mixing_height_m);
-      double fmax = std::max(geometry_.flushing_rate(u0, v0), geometry_.flushing_rate(u1, v1));
-      fmax = std::max(fmax, options_.min_wind_m_s * geometry_.isotropic_per_m);
-      double lmax = fmax;
-      for (const auto& pr : processes_) {
-        lmax = std::max(lmax, fmax + pr.loss_rate_per_s + pr.deposition_velocity_m_s / hmin);
-      }
-      const double n_lambda = std::ceil(lmax * T / options_.max_lambda_dt);
-      const double n_lid = std::ceil(std::fabs(h1 - h0) / hmin / options_.max_relative_lid_change);
-      const double want = std::max({1.0, n_lambda, n_lid});
-      n = static_cast<int>(std::min(want, static_cast<double>(options_.max_substeps_per_hour)));
-    }
-    // Segments of the hour between clock changes, each with its share of the sub-steps.
-    const double seg_end[2] = {split, T};
-    double t0 = 0.0;
-    for (int half = 0; half < 2; ++half) {
-      const double t1 = seg_end[half];
-      if (t1 <= t0) continue;
-      // Rounded up, so that no sub-step is longer than the controls allow (integer arithmetic:
-      // the segment lengths are whole seconds).
-      const long seg_s = std::lround(t1 - t0);
-      const int m = static_cast<int>(std::max(1L, (static_cast<long>(n) * seg_s + 3599) / 3600));
-      const double dt = (t1 - t0) / m;
-      for (int k = 0; k < m; ++k) {
-        const double ta = t0 + k * dt;
-        const double tm = (ta + 0.5 * dt) / T;
-        const double te = (ta + dt) / T;
-        const double hm_met = h0 + (h1 - h0) * tm;
-        const double hm = floored_height(hm_met, out);
-        const double um = u0 + (u1 - u0) * tm;
-        const double vm = v0 + (v1 - v0) * tm;
-        move_lid(s, hm, F, hour, out);
-        double f = 0.0;
-        const double speed = flushing(um, vm, f, out);
-        double fa = 0.0;
-        if (fa_factor > 0.0) fa = geometry_.flushing_rate(um * fa_factor, vm * fa_factor);
-        exact_step(s, dt, f, fa, F, hour, half, out);
-        move_lid(s, floored_height(h0 + (h1 - h0) * te, out), F, hour, out);
-        accumulate_met(dt, hm, hm_met, um, vm, speed, f);
-        ++out.substeps;
-      }
-      t0 = t1;
+    double breaks[kMaxBreaks + 1];
+    const int segments = hour_breaks(s, F, hour, breaks);
+    const double step_s = substep_limit_s(F, hour);
+    if (options_.fixed_substeps_per_hour > 0) {
+      interpolate(s, F, hour, breaks, segments, step_s, 1, out);
+    } else {
+      // The coarse solution on a copy of the state, then the fine one (half the sub-step) on the
+      // state itself; the hour's results are their Richardson combination (fourth order in the
+      // sub-step where the forcing is smooth, which the breaks above make it within segments).
+      BoxState& w = out.work_state;
+      w.mixing_height_m = s.mixing_height_m;
+      w.cycle_top_m = s.cycle_top_m;
+      w.residual_top_m = s.residual_top_m;
+      w.cycle_low_m = s.cycle_low_m;
+      std::copy(s.c_g_m3.begin(), s.c_g_m3.end(), w.c_g_m3.begin());
+      std::copy(s.cr_g_m3.begin(), s.cr_g_m3.end(), w.cr_g_m3.begin());
+      std::copy(s.older_g_m3.begin(), s.older_g_m3.end(), w.older_g_m3.begin());
+      interpolate(w, F, hour, breaks, segments, step_s, 1, out);
+      std::copy(out.mean_c_g_m3.begin(), out.mean_c_g_m3.end(), out.work_mean.begin());
+      std::copy(out.budget.begin(), out.budget.end(), out.work_budget.begin());
+      HourResult coarse_met;  // scalars only: its vectors stay empty (no allocation)
+      coarse_met.mixing_height_mean_m = out.mixing_height_mean_m;
+      coarse_met.wind_u_mean_m_s = out.wind_u_mean_m_s;
+      coarse_met.wind_v_mean_m_s = out.wind_v_mean_m_s;
+      coarse_met.wind_speed_mean_m_s = out.wind_speed_mean_m_s;
+      coarse_met.flushing_rate_mean_per_s = out.flushing_rate_mean_per_s;
+      coarse_met.ventilation_mean_m2_s = out.ventilation_mean_m2_s;
+      const bool calm = out.calm_floor, lid = out.lid_floor;
+      const int coarse_steps = out.substeps;
+      clear(out);
+      interpolate(s, F, hour, breaks, segments, step_s, 2, out);
+      (void)combine(s, coarse_met, out);
+      out.calm_floor = out.calm_floor || calm;
+      out.lid_floor = out.lid_floor || lid;
+      out.substeps += coarse_steps;
     }
   }
-  for (double& c : out.mean_c_g_m3) c /= T;
+  for (double& c : out.mean_c_g_m3) c /= kHour;
 }
 
 }  // namespace lidbox

@@ -425,8 +425,8 @@ void read_model(const TomlTable& top, CaseSpec& c) {
   const auto r = top.optional_table(
       "model", {"residual_layer", "residual_wind_factor", "min_wind_speed", "min_mixing_height",
                 "spin_up", "spin_up_tolerance", "spin_up_max_days", "max_lambda_dt",
-                "max_relative_lid_change", "max_substeps_per_hour", "initial_residual_top",
-                "residual_top", "residual_cycle_threshold"});
+                "max_relative_lid_change", "max_relative_flushing_change", "max_substeps_per_hour",
+                "initial_residual_top", "residual_top", "residual_cycle_threshold"});
   if (!r) return;
   c.engine.residual_layer = r->optional_bool("residual_layer").value_or(true);
   c.engine.residual_wind_factor = r->optional_number("residual_wind_factor").value_or(0.0);
@@ -457,10 +457,13 @@ void read_model(const TomlTable& top, CaseSpec& c) {
     throw InputError(r->where("spin_up_tolerance"), "a tolerance <= 0", "a positive number");
   c.spin_up_max_days = r->optional_whole_number("spin_up_max_days", 1, kIntMax).value_or(60);
   c.engine.max_lambda_dt = r->optional_number("max_lambda_dt").value_or(0.1);
-  c.engine.max_relative_lid_change = r->optional_number("max_relative_lid_change").value_or(0.02);
+  c.engine.max_relative_lid_change = r->optional_number("max_relative_lid_change").value_or(0.04);
+  c.engine.max_relative_flushing_change =
+      r->optional_number("max_relative_flushing_change").value_or(0.25);
   c.engine.max_substeps_per_hour =
       r->optional_whole_number("max_substeps_per_hour", 1, kIntMax).value_or(3600);
-  if (!(c.engine.max_lambda_dt > 0.0) || !(c.engine.max_relative_lid_change > 0.0)) {
+  if (!(c.engine.max_lambda_dt > 0.0) || !(c.engine.max_relative_lid_change > 0.0) ||
+      !(c.engine.max_relative_flushing_change > 0.0)) {
     throw InputError(r->where_table(), "a sub-step control <= 0", "positive sub-step controls");
   }
   read_initial_residual_top(*r, c);

@@ -80,9 +80,11 @@ struct EngineOptions {
   // 0.5 m/s is common practice (no source); 50 m is common practice (no source).
   double min_wind_m_s = 0.5;
   double min_mixing_height_m = 50.0;
-  // Sub-step control for interpolated forcing.
-  double max_lambda_dt = 0.1;            // lambda * h per sub-step
-  double max_relative_lid_change = 0.02;  // |dH| / H per sub-step
+  // Sub-step control for interpolated forcing (per sub-step of the coarse solution; the fine
+  // one halves it). Defaults measured against a tight reference: README, "Accuracy".
+  double max_lambda_dt = 0.1;                  // lambda * h per sub-step
+  double max_relative_lid_change = 0.04;       // |dH| / H per sub-step
+  double max_relative_flushing_change = 0.25;  // |df| / f per sub-step
   int max_substeps_per_hour = 3600;
   int fixed_substeps_per_hour = 0;  // > 0 overrides the adaptive choice (convergence studies)
 };
@@ -194,7 +196,12 @@ struct HourResult {
   double ventilation_mean_m2_s = 0.0;  // hour mean of u H of the met as given (before floors)
   bool calm_floor = false;
   bool lid_floor = false;
-  int substeps = 0;
+  int substeps = 0;  // sub-steps computed (with interpolated forcing: both solutions)
+
+  // Workspace of the interpolated step, sized by BoxEngine::make_result (not results).
+  BoxState work_state;
+  std::vector<double> work_mean;
+  std::vector<BudgetTerms> work_budget;
 
   [[nodiscard]] double mean(std::size_t p, std::size_t j) const { return mean_c_g_m3[p * parts + j]; }
   [[nodiscard]] double mean_total(std::size_t p) const;
@@ -219,6 +226,10 @@ class BoxEngine {
   [[nodiscard]] double mixed_mass(const BoxState& s, std::size_t p) const;
   [[nodiscard]] double residual_mass(const BoxState& s, std::size_t p) const;
 
+  // Most kinks of the forcing within one hour (clock split, two wind components, two calm-floor
+  // crossings, the lid floor, two residual-layer tops).
+  static constexpr int kMaxBreaks = 12;
+
   // Advances the state through hour `hour` of the forcing. No allocation, no I/O.
   void step_hour(BoxState& s, const Forcing& forcing, std::size_t hour, HourResult& out) const;
 
@@ -226,6 +237,14 @@ class BoxEngine {
   void move_lid(BoxState& s, double new_height_m, const Forcing& F, std::size_t hour,
                 HourResult& out) const;
   void start_cycle(BoxState& s) const;
+  // Interpolated forcing: the hour's segments between the points where the forcing has a kink,
+  // the sub-step the controls allow, one Strang solution with sub-steps `refine` times finer,
+  // and the Richardson combination of a coarse and a fine solution.
+  int hour_breaks(const BoxState& s, const Forcing& F, std::size_t hour, double* breaks) const;
+  [[nodiscard]] double substep_limit_s(const Forcing& F, std::size_t hour) const;
+  void interpolate(BoxState& s, const Forcing& F, std::size_t hour, const double* breaks,
+                   int segments, double step_s, int refine, HourResult& out) const;
+  bool combine(BoxState& s, const HourResult& coarse_met, HourResult& out) const;
   void vent_older(BoxState& s, HourResult& out) const;
   void exact_step(BoxState& s, double dt_s, double flushing_per_s, double flushing_aloft_per_s,
                   const Forcing& F, std::size_t hour, int half, HourResult& out) const;
