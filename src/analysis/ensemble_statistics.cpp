@@ -12,18 +12,6 @@
 
 namespace lidbox {
 
-double percentile_linear(std::vector<double>& x, double q) {
-  if (x.empty() || !(q >= 0.0 && q <= 100.0)) {
-    throw InternalError("percentile_linear of " + std::to_string(x.size()) +
-                        " values at q = " + std::to_string(q));
-  }
-  std::sort(x.begin(), x.end());
-  const double h = static_cast<double>(x.size() - 1) * q / 100.0;
-  const auto lo = static_cast<std::size_t>(std::floor(h));
-  if (lo + 1 >= x.size()) return x.back();
-  return x[lo] + (h - static_cast<double>(lo)) * (x[lo + 1] - x[lo]);
-}
-
 double silverman_bandwidth(const std::vector<double>& x) {
   const auto n = static_cast<double>(x.size());
   if (x.size() < 2) return 0.0;

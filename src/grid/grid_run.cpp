@@ -14,6 +14,7 @@
 #include "lidbox/base/atomic_file.hpp"
 #include "lidbox/base/caution.hpp"
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/percentile.hpp"
 #include "lidbox/base/text.hpp"
 #include "lidbox/engine/run.hpp"
 #include "lidbox/grid/grid_files.hpp"
@@ -167,7 +168,7 @@ void close_cell_period(const GridCase& gc, const Layout& L, PeriodAcc& a, bool d
   }
   const double n = static_cast<double>(a.vent_daily.size());
   put(n > 0 ? a.vent_sum / n : kNaN);
-  for (double q : gc.grid.percentiles) put(grid_percentile(a.vent_daily, q));
+  for (double q : gc.grid.percentiles) put(percentile_linear(a.vent_daily, q));
   put(a.dil_days > 0 ? a.dil_sum / a.dil_days : kNaN);
   if (L.exceedance) put(a.exceed_days);
   a.reset(L.schemes);
@@ -747,18 +748,6 @@ GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
   write_output_files(output_dir, {{"summary.txt", t}});
   S.files.push_back((std::filesystem::path(output_dir) / "summary.txt").string());
   return S;
-}
-
-double grid_percentile(std::vector<double>& values, double q) {
-  if (values.empty()) return kNaN;
-  std::sort(values.begin(), values.end());
-  const double pos = q / 100.0 * static_cast<double>(values.size() - 1);
-  const auto lo = static_cast<std::size_t>(std::floor(pos));
-  const double t = pos - static_cast<double>(lo);
-  if (lo + 1 >= values.size()) return values.back();
-  const double a = values[lo], b = values[lo + 1];
-  // numpy's lerp: a + (b - a) t, computed from the nearer end for accuracy.
-  return t < 0.5 ? a + (b - a) * t : b - (b - a) * (1.0 - t);
 }
 
 }  // namespace lidbox

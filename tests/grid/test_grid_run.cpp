@@ -12,6 +12,7 @@
 
 #include "lidbox/base/error.hpp"
 #include "lidbox/engine/run.hpp"
+#include "lidbox/base/percentile.hpp"
 #include "lidbox/grid/grid_run.hpp"
 #include "netcdf_fixture.hpp"
 
@@ -247,12 +248,12 @@ TEST_CASE("constant met gives the closed-form dilution and every day stagnant") 
 TEST_CASE("percentiles interpolate linearly between order statistics as numpy does") {
   // numpy.percentile([1, 2, 3, 4, 10], q) (default "linear"): q=50 -> 3, q=90 -> 7.6, q=10 -> 1.4
   std::vector<double> v = {10, 2, 4, 1, 3};
-  CHECK(grid_percentile(v, 50) == 3.0);
-  CHECK(grid_percentile(v, 90) == doctest::Approx(7.6).epsilon(1e-15));
-  CHECK(grid_percentile(v, 10) == doctest::Approx(1.4).epsilon(1e-15));
-  CHECK(grid_percentile(v, 100) == 10.0);
+  CHECK(percentile_linear(v, 50) == 3.0);
+  CHECK(percentile_linear(v, 90) == doctest::Approx(7.6).epsilon(1e-15));
+  CHECK(percentile_linear(v, 10) == doctest::Approx(1.4).epsilon(1e-15));
+  CHECK(percentile_linear(v, 100) == 10.0);
   std::vector<double> none;
-  CHECK(std::isnan(grid_percentile(none, 50)));
+  CHECK(std::isnan(percentile_linear(none, 50)));
 }
 
 TEST_CASE("a grid without a latitude coordinate is refused naming the variable") {

@@ -27,13 +27,12 @@
 #include <vector>
 
 #include "lidbox/engine/case_file.hpp"
+#include "lidbox/base/percentile.hpp"
 #include "lidbox/engine/run.hpp"
 #include "lidbox/standards/rule_set.hpp"
 
 namespace lidbox {
 
-// numpy.percentile(x, q) with the default method; x is sorted in place. q in [0, 100], x not empty.
-double percentile_linear(std::vector<double>& x, double q);
 
 // Silverman's bandwidth s (see above) and the dressed probability of exceeding t.
 double silverman_bandwidth(const std::vector<double>& x);

@@ -65,10 +65,5 @@ struct GridRunSummary {
 GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
                         const GridRunOptions& options);
 
-// The q-th percentile (0..100) of values by linear interpolation between order statistics
-// (numpy.percentile's default, Hyndman and Fan 1996 definition 7, with numpy's lerp from the
-// nearer end); NaN for none. Sorts `values`. analysis/ensemble_statistics.hpp has the same rule
-// for ensembles; the two rooms are peers, so one of them should move to base.
-double grid_percentile(std::vector<double>& values, double q);
 
 }  // namespace lidbox
