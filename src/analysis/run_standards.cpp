@@ -39,6 +39,7 @@ std::optional<StandardsReport> run_standards(const CaseSpec& c, const RunResult&
       st.rules_dir.empty() ? std::nullopt : std::optional<std::filesystem::path>(st.rules_dir));
   opt.rule_sets = load_rule_sets(st.rule_sets, dir);
   opt.lst_offset_s = c.zone.standard_offset_s();
+  opt.zone = c.zone;
   opt.issue_time_utc = issue_time_override ? issue_time_override : st.issue_time_utc;
   opt.aqi_table = parse_aqi_table(st.aqi_table, c.file + ": [standards] aqi_table");
   opt.with_aqi = st.aqi;
@@ -109,7 +110,7 @@ std::string standards_summary(const StandardsReport& report) {
       if (e.start_utc < first->start_utc) first = &e;
     }
     o << "  alert episodes: " << report.episodes.size() << " (first " << first->rule_set_id << " "
-      << first->rule_id << ", " << first->level_name << ", " << format_utc(first->start_utc)
+      << first->rule_id << ", " << first->level_name << ", " << format_local(first->start_utc, report.options.zone)
       << " for " << format_number(first->duration_h, 4) << " h, peak "
       << format_number(first->peak, 4) << " " << first->unit;
     if (first->lead_time_h) o << ", lead time " << format_number(*first->lead_time_h, 4) << " h";

@@ -15,23 +15,28 @@ struct Cursor {
   [[nodiscard]] char peek() const { return done() ? '\0' : s[i]; }
 };
 
-bool read_name(Cursor& c) {
+// A zone name, "MST" or quoted "<+0530>"; `name` gets it without the quotes.
+bool read_name(Cursor& c, std::string& name) {
   std::size_t n = 0;
   if (c.peek() == '<') {
     ++c.i;
+    const std::size_t from = c.i;
     while (!c.done() && c.peek() != '>') {
       const char ch = c.s[c.i++];
       if (!std::isalnum(static_cast<unsigned char>(ch)) && ch != '+' && ch != '-') return false;
       ++n;
     }
     if (c.peek() != '>') return false;
+    name = std::string(c.s.substr(from, n));
     ++c.i;
     return n >= 3;
   }
+  const std::size_t from = c.i;
   while (!c.done() && std::isalpha(static_cast<unsigned char>(c.peek()))) {
     ++c.i;
     ++n;
   }
+  name = std::string(c.s.substr(from, n));
   return n >= 3;
 }
 
@@ -122,11 +127,11 @@ std::string parse(std::string_view spec, bool require_rules, Zone& out) {
   Cursor c{spec};
   out = Zone{};
   int std_west = 0;
-  if (!read_name(c)) return "does not start with a zone name of 3 or more letters";
+  if (!read_name(c, out.std_name)) return "does not start with a zone name of 3 or more letters";
   if (!read_hms(c, 24, std_west)) return "has no valid offset after its standard-time name";
   out.std_east_s = -std_west;
   if (c.done()) return "";
-  if (!read_name(c)) return "has an invalid daylight-saving name";
+  if (!read_name(c, out.dst_name)) return "has an invalid daylight-saving name";
   int dst_west = std_west - 3600;  // POSIX default: one hour ahead of standard time
   if (c.peek() != ',' && !c.done()) {
     if (!read_hms(c, 24, dst_west)) return "has an invalid daylight-saving offset";
@@ -145,7 +150,11 @@ std::string parse(std::string_view spec, bool require_rules, Zone& out) {
 }
 
 int civil_offset_s(const Zone& zone, UtcSeconds t) {
-  if (!zone.has_dst) return zone.std_east_s;
+  return in_daylight_saving(zone, t) ? zone.dst_east_s : zone.std_east_s;
+}
+
+bool in_daylight_saving(const Zone& zone, UtcSeconds t) {
+  if (!zone.has_dst) return false;
   int y =
       civil_from_utc_seconds(std::clamp<UtcSeconds>(t, -3'200'000'000'000LL, 3'100'000'000'000LL) +
                              zone.std_east_s)
@@ -172,8 +181,7 @@ int civil_offset_s(const Zone& zone, UtcSeconds t) {
       found = true;
     }
   }
-  if (!found) return zone.std_east_s;
-  return latest.to_dst ? zone.dst_east_s : zone.std_east_s;
+  return found && latest.to_dst;
 }
 
 }  // namespace lidbox::posix_tz

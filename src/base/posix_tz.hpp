@@ -32,6 +32,8 @@ struct Rule {
 };
 
 struct Zone {
+  std::string std_name;  // "MST", "+0530" (a quoted <...> name without its quotes)
+  std::string dst_name;  // "" without daylight saving
   int std_east_s = 0;  // standard offset, seconds EAST of UTC (sign already turned)
   bool has_dst = false;
   int dst_east_s = 0;
@@ -46,5 +48,7 @@ std::string parse(std::string_view spec, bool require_rules, Zone& out);
 // The civil offset in force at `t` [s east of UTC]. Years beyond -99999..99999 are evaluated at
 // that bound (no such instant comes from any lidbox reader).
 int civil_offset_s(const Zone& zone, UtcSeconds t);
+// Whether daylight saving is in force at `t`.
+bool in_daylight_saving(const Zone& zone, UtcSeconds t);
 
 }  // namespace lidbox::posix_tz

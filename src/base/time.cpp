@@ -219,7 +219,11 @@ TimeZone TimeZone::parse(std::string_view spec, std::string_view where) {
     z.kind_ = Kind::posix;
     z.standard_offset_s_ = rules->posix.std_east_s;
     z.has_dst_ = rules->posix.has_dst;
-    if (z.has_dst_) z.rules_ = std::move(rules);
+    if (z.has_dst_) {
+      z.rules_ = std::move(rules);
+    } else {
+      z.posix_std_name_ = std::make_shared<const std::string>(rules->posix.std_name);
+    }
     return z;
   }
   std::vector<std::string> names;
@@ -274,6 +278,50 @@ std::string TimeZone::kind_label() const {
       break;
   }
   return "fixed offset";
+}
+
+std::string TimeZone::abbreviation(UtcSeconds t) const {
+  auto fixed_name = [](int offset_s) {
+    return offset_s == 0 ? std::string("UTC") : "UTC" + format_utc_offset(offset_s);
+  };
+  if (!rules_) {
+    if (kind_ == Kind::posix && posix_std_name_) return *posix_std_name_;
+    return fixed_name(standard_offset_s_);
+  }
+  if (!rules_->iana || t >= rules_->footer_from) {
+    const posix_tz::Zone& z = rules_->posix;
+    return posix_tz::in_daylight_saving(z, t) ? z.dst_name : z.std_name;
+  }
+  const UtcSeconds bounded = std::clamp<UtcSeconds>(t, -400'000'000'000LL, 400'000'000'000LL);
+  return rules_->iana->get_info(date::sys_seconds{std::chrono::seconds{bounded}}).abbrev;
+}
+
+std::string TimeZone::display_name() const {
+  switch (kind_) {
+    case Kind::iana:
+      return rules_->iana->name();
+    case Kind::posix:
+      if (rules_) return rules_->posix.std_name + "/" + rules_->posix.dst_name;
+      return posix_std_name_ ? *posix_std_name_ : spec_;
+    case Kind::fixed:
+      break;
+  }
+  return standard_offset_s_ == 0 ? std::string("UTC") : "UTC" + format_utc_offset(standard_offset_s_);
+}
+
+std::string format_local(UtcSeconds t, const TimeZone& zone) {
+  const CivilTime c = zone.civil(t);
+  char buf[40];
+  std::snprintf(buf, sizeof buf, "%04d-%02d-%02d %02d:%02d ", c.year, c.month, c.day, c.hour,
+                c.minute);
+  return buf + zone.abbreviation(t);
+}
+
+std::string format_local_clock(UtcSeconds t, const TimeZone& zone) {
+  const CivilTime c = zone.civil(t);
+  char buf[16];
+  std::snprintf(buf, sizeof buf, "%02d:%02d ", c.hour, c.minute);
+  return buf + zone.abbreviation(t);
 }
 
 CivilTime TimeZone::civil(UtcSeconds t) const {

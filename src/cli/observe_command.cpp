@@ -70,6 +70,7 @@ void run(const ObserveArgs& a) {
   const auto obs = read_observations_csv(a.observations);
   ReportOptions opt;
   opt.lst_offset_s = parse_utc_offset_s(a.lst_offset, "--lst-offset");
+  opt.zone = TimeZone::parse(format_utc_offset(opt.lst_offset_s), "--lst-offset");
   if (!a.issue_time.empty()) {
     opt.issue_time_utc = parse_instant_with_offset(a.issue_time, "--issue-time");
   }

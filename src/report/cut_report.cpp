@@ -11,13 +11,7 @@ namespace lidbox {
 
 namespace {
 
-std::string local_start(const CaseSpec& c, UtcSeconds t) {
-  const CivilTime lt = c.zone.civil(t);
-  char b[64];
-  std::snprintf(b, sizeof b, "%04d-%02d-%02d %02d:%02d local", lt.year, lt.month, lt.day, lt.hour,
-                lt.minute);
-  return b;
-}
+std::string local_start(const CaseSpec& c, UtcSeconds t) { return format_local(t, c.zone); }
 
 std::string share(double rest, double level) {
   char b[32];

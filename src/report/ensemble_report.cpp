@@ -131,7 +131,7 @@ std::string render_ensemble_summary(const CaseSpec& c, const EnsembleOutcome& e)
     const HourRecord& h = e.members.front().hours[peak];
     o << "  " << c.pollutants[p].name << " peak of the median "
       << format_number(P.value(peak, p, k50) / to, 4) << ' ' << c.pollutants[p].unit.canonical
-      << " at " << format_with_offset(h.start_utc, h.civil_offset_s) << " ("
+      << " at " << format_local(h.start_utc, c.zone) << " ("
       << q_label(P.percentiles().front()) << ' ' << format_number(P.value(peak, p, 0) / to, 4)
       << ", " << q_label(P.percentiles().back()) << ' '
       << format_number(P.value(peak, p, P.percentiles().size() - 1) / to, 4) << ")\n";

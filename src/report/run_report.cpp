@@ -196,7 +196,7 @@ std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunRes
     std::snprintf(line, sizeof line, "%-10s %-8s %10s %15s  %-28s ", ps.name.c_str(), unit_of(ps).c_str(),
                   format_number(in_unit(ps, sum / static_cast<double>(n)), 4).c_str(),
                   format_number(in_unit(ps, r.total(peak, p)), 4).c_str(),
-                  format_with_offset(r.hours[peak].start_utc, r.hours[peak].civil_offset_s).c_str());
+                  format_local(r.hours[peak].start_utc, c.zone).c_str());
     o << line;
     const double tot = r.total(peak, p);
     bool first = true;

@@ -175,3 +175,56 @@ TEST_CASE("a POSIX rule that ends before it starts in the year spans the new yea
   CHECK(z.civil_offset_s(parse_iso8601("2026-03-08T08:59:59Z", nullptr, "t")) == -7 * 3600);
   CHECK(z.civil_offset_s(parse_iso8601("2026-03-08T09:00:00Z", nullptr, "t")) == -6 * 3600);
 }
+
+namespace {
+
+UtcSeconds utc(const char* iso) { return parse_iso8601(iso, nullptr, "test"); }
+
+}  // namespace
+
+TEST_CASE("local civil time where people read it carries the zone's abbreviation") {
+  // Reference: python3 zoneinfo with the same system tzdata (Debian), run on 2026-12-02:
+  //   datetime.fromisoformat(T).replace(tzinfo=timezone.utc).astimezone(ZoneInfo(Z))
+  //   .strftime("%Y-%m-%d %H:%M"), .tzname()
+  struct Case {
+    const char* zone;
+    const char* utc;
+    const char* local;
+  };
+  const Case cases[] = {
+      {"Europe/Paris", "2026-07-14T12:00:00Z", "2026-07-14 14:00 CEST"},
+      {"Europe/Paris", "2026-01-12T13:00:00Z", "2026-01-12 14:00 CET"},
+      {"America/Denver", "2026-01-12T21:00:00Z", "2026-01-12 14:00 MST"},
+      {"America/Denver", "2026-07-14T20:00:00Z", "2026-07-14 14:00 MDT"},
+      {"Australia/Adelaide", "2026-01-12T03:30:00Z", "2026-01-12 14:00 ACDT"},  // +10:30
+      {"Australia/Adelaide", "2026-07-14T04:30:00Z", "2026-07-14 14:00 ACST"},  // +09:30
+      {"Europe/Paris", "2040-07-14T12:00:00Z", "2040-07-14 14:00 CEST"},  // past the 2037 table
+      {"America/Sao_Paulo", "2026-01-12T17:00:00Z", "2026-01-12 14:00 -03"},  // numeric in tzdata
+      {"Asia/Kolkata", "2026-01-12T08:30:00Z", "2026-01-12 14:00 IST"},
+  };
+  for (const Case& c : cases) {
+    CAPTURE(c.zone);
+    CAPTURE(c.utc);
+    const TimeZone z = TimeZone::parse(c.zone, "test");
+    CHECK(format_local(utc(c.utc), z) == c.local);
+    CHECK(z.display_name() == c.zone);
+  }
+  CHECK(format_local_clock(utc("2026-07-14T12:00:00Z"), TimeZone::parse("Europe/Paris", "t")) ==
+        "14:00 CEST");
+}
+
+TEST_CASE("POSIX strings and fixed offsets name themselves") {
+  // The abbreviations are the POSIX string's own names (IEEE Std 1003.1 section 8.3); the
+  // instants follow the US rule of the string (second Sunday of March to first of November).
+  const TimeZone mst = TimeZone::parse("MST7MDT,M3.2.0,M11.1.0", "t");
+  CHECK(format_local(utc("2026-01-12T21:00:00Z"), mst) == "2026-01-12 14:00 MST");
+  CHECK(format_local(utc("2026-07-14T20:00:00Z"), mst) == "2026-07-14 14:00 MDT");
+  CHECK(mst.display_name() == "MST/MDT");
+  const TimeZone quoted = TimeZone::parse("<+0530>-5:30", "t");
+  CHECK(format_local(utc("2026-01-12T08:30:00Z"), quoted) == "2026-01-12 14:00 +0530");
+  CHECK(quoted.display_name() == "+0530");
+  const TimeZone fixed = TimeZone::parse("-07:00", "t");
+  CHECK(format_local(utc("2026-01-12T21:00:00Z"), fixed) == "2026-01-12 14:00 UTC-07:00");
+  CHECK(fixed.display_name() == "UTC-07:00");
+  CHECK(TimeZone().abbreviation(0) == "UTC");
+}

@@ -67,6 +67,13 @@ class TimeZone {
   [[nodiscard]] const std::string& spec() const { return spec_; }
   // True for an IANA name (then tzdata_version() says which database answered).
   [[nodiscard]] bool from_tz_database() const { return kind_ == Kind::iana; }
+  // The abbreviation in force at an instant, as the zone's source names it: "CEST", "MST",
+  // "ACDT"; tzdata's numeric ones stay numeric ("+0530", "-03"). A fixed offset is "UTC" or
+  // "UTC+01:00" / "UTC-05:30". Same answer as python3 zoneinfo's tzname() for IANA zones.
+  [[nodiscard]] std::string abbreviation(UtcSeconds t) const;
+  // The zone by its name, for titles: the IANA name ("Europe/Paris"); a POSIX string by its
+  // abbreviations ("MST/MDT", or "MST" without daylight saving); a fixed offset as "UTC-07:00".
+  [[nodiscard]] std::string display_name() const;
   // What the zone is, for the outputs' metadata: "IANA tzdata 2026f", "POSIX TZ string" or
   // "fixed offset".
   [[nodiscard]] std::string kind_label() const;
@@ -77,8 +84,14 @@ class TimeZone {
   int standard_offset_s_ = 0;
   bool has_dst_ = false;
   enum class Kind { fixed, posix, iana } kind_ = Kind::fixed;
-  std::shared_ptr<const Rules> rules_;  // null for fixed offsets
+  std::shared_ptr<const Rules> rules_;  // null for fixed offsets and POSIX strings without DST
+  std::shared_ptr<const std::string> posix_std_name_;  // a POSIX string without DST: its name
 };
+
+// Local civil time where people read it: "2026-07-14 14:00 CEST" (date, hh:mm, abbreviation).
+std::string format_local(UtcSeconds t, const TimeZone& zone);
+// "14:00 CEST"
+std::string format_local_clock(UtcSeconds t, const TimeZone& zone);
 
 // The version of the system's tzdata ("2026f"), or "unknown"; for the outputs' metadata.
 std::string tzdata_version();

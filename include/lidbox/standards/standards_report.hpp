@@ -34,6 +34,9 @@ struct RollingRequest {
 struct ReportOptions {
   std::vector<RuleSet> rule_sets;
   int lst_offset_s = 0;                      // local standard time, seconds east of UTC
+  // Local civil time for what people read (episodes, peaks, alerts in report.md and summaries);
+  // the tables keep UTC. A run passes its case's zone; observations their fixed LST offset.
+  TimeZone zone;
   std::optional<UtcSeconds> issue_time_utc;  // forecast issue time, for episode lead times
   AqiTable aqi_table = AqiTable::epa_2024;
   bool with_aqi = true;
