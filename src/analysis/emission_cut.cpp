@@ -235,6 +235,101 @@ CutScale whole_run(const std::vector<CutScale>& days) {
   return w;
 }
 
+// Appends the whole-run row when more than one day needed a cut.
+template <class Rule>
+void add_whole_run_row(const RuleSet& rs, const Rule& rule, bool alert, double level,
+                       double boundary, const std::vector<CutScale>& day_c,
+                       const std::vector<CutScale>& day_a, EmissionCut& out) {
+  if (day_c.size() <= 1) return;
+  CutRow r = row_of(rs, rule, alert, level, boundary);
+  r.whole_run = true;
+  r.chosen = whole_run(day_c);
+  r.all = whole_run(day_a);
+  out.rows.push_back(r);
+}
+
+// The parts of the target's runs with all emissions and with the cut sectors zeroed.
+struct CutParts {
+  std::vector<RunParts> chosen;  // the chosen sectors zeroed from the start
+  std::vector<RunParts> all;     // every sector zeroed from the start
+};
+
+// One row per complete day above a daily limit's rounding boundary, then the whole run.
+void add_limit_rows(const CaseSpec& c, const CutParts& parts, const RuleSet& rs, const Limit& l,
+                    std::size_t p, EmissionCut& out) {
+  const CutTarget& t = c.cut->target;
+  if (!daily_rule(l)) {
+    out.skipped.push_back(rs.id + " " + l.id + " (" + to_string(l.statistic) +
+                          ", not a daily statistic)");
+    return;
+  }
+  const double b = rounding_boundary(l.level, l.rounding);
+  const auto sc = splits(c, parts.chosen, l, p, rs);
+  const auto sa = splits(c, parts.all, l, p, rs);
+  std::vector<CutScale> day_c, day_a;
+  for (std::size_t d = 0; d < sc.front().f.days(); ++d) {
+    bool complete = true;
+    for (const Split& s : sc) complete = complete && s.f.day_complete[d];
+    if (!complete) continue;
+    const double now = value_now(t, sc, d);
+    if (!(now > b)) continue;
+    CutRow r = row_of(rs, l, false, l.level, b);
+    r.day = sc.front().f.first_day + static_cast<std::int64_t>(d);
+    r.value = now;
+    r.chosen = target_scale(t, sc, d, b, false, [&](std::size_t m, std::size_t dd) {
+      return limit_day_scale(sc[m], dd, b);
+    });
+    r.all = target_scale(t, sa, d, b, false, [&](std::size_t m, std::size_t dd) {
+      return limit_day_scale(sa[m], dd, b);
+    });
+    day_c.push_back(r.chosen);
+    day_a.push_back(r.all);
+    out.rows.push_back(r);
+  }
+  add_whole_run_row(rs, l, false, l.level, b, day_c, day_a, out);
+}
+
+// One row per day with an episode of the alert rule, then the whole run.
+void add_alert_rows(const CaseSpec& c, const CutParts& parts, const RuleSet& rs,
+                    const AlertRule& a, std::size_t p, EmissionCut& out) {
+  const CutTarget& t = c.cut->target;
+  if (t.kind == CutTargetKind::percentile) {
+    out.skipped.push_back(rs.id + " " + a.id +
+                          " (an episode has no value to take a percentile of: use "
+                          "at_most_members)");
+    return;
+  }
+  const auto sc = splits(c, parts.chosen, a, p, rs);
+  const auto sa = splits(c, parts.all, a, p, rs);
+  std::vector<std::vector<double>> ac, aa;
+  for (const Split& s : sc) ac.push_back(alert_day_scales(s, a));
+  for (const Split& s : sa) aa.push_back(alert_day_scales(s, a));
+  std::vector<CutScale> day_c, day_a;
+  for (std::size_t d = 0; d < sc.front().f.days(); ++d) {
+    CutRow r = row_of(rs, a, true, a.threshold, a.threshold);
+    r.day = sc.front().f.first_day + static_cast<std::int64_t>(d);
+    r.chosen = target_scale(t, sc, d, a.threshold, true,
+                            [&](std::size_t m, std::size_t dd) { return ac[m][dd]; });
+    if (r.chosen.feasible && r.chosen.scale >= 1.0) continue;  // no episode that day now
+    r.all = target_scale(t, sa, d, a.threshold, true,
+                         [&](std::size_t m, std::size_t dd) { return aa[m][dd]; });
+    day_c.push_back(r.chosen);
+    day_a.push_back(r.all);
+    out.rows.push_back(r);
+  }
+  add_whole_run_row(rs, a, true, a.threshold, a.threshold, day_c, day_a, out);
+}
+
+// The met of the runs the target looks at: the deterministic run, one member, or all members.
+std::vector<MetSeries> target_mets(const CutRequest& cut, const MetSeries& deterministic,
+                                   const std::vector<MetSeries>& member_met) {
+  const CutTarget& t = cut.target;
+  if (t.kind == CutTargetKind::deterministic) return {deterministic};
+  check_cut_target(cut, member_met.size());
+  if (t.kind == CutTargetKind::member) return {member_met.at(t.member - 1)};
+  return member_met;
+}
+
 }  // namespace
 
 EmissionCut compute_emission_cut(const CaseSpec& c, const MetSeries& deterministic,
@@ -243,17 +338,7 @@ EmissionCut compute_emission_cut(const CaseSpec& c, const MetSeries& determinist
   if (!c.cut) throw InternalError("compute_emission_cut on a case without [cut]");
   EmissionCut out;
   out.request = *c.cut;
-  const CutTarget& t = c.cut->target;
-  const bool ensemble_target = t.kind != CutTargetKind::deterministic;
-  if (ensemble_target) check_cut_target(*c.cut, member_met.size());
-  std::vector<MetSeries> mets;
-  if (!ensemble_target) {
-    mets.push_back(deterministic);
-  } else if (t.kind == CutTargetKind::member) {
-    mets.push_back(member_met.at(t.member - 1));
-  } else {
-    mets = member_met;
-  }
+  const std::vector<MetSeries> mets = target_mets(*c.cut, deterministic, member_met);
   const UtcSeconds first =
       deterministic.first_stamp_utc -
       (c.met.reading == MetReading::hour_average && c.met.hour_label == HourLabel::period_end
@@ -266,9 +351,8 @@ EmissionCut compute_emission_cut(const CaseSpec& c, const MetSeries& determinist
   out.sectors_label = sectors_label(c, c.cut->sectors);
   std::vector<std::size_t> every(c.sectors.size());
   for (std::size_t k = 0; k < every.size(); ++k) every[k] = k;
-  const auto chosen = target_parts(c, zeroed_case(c, c.cut->sectors, out.start_utc), mets);
-  const auto all = target_parts(c, zeroed_case(c, every, out.start_utc), mets);
-
+  const CutParts parts{target_parts(c, zeroed_case(c, c.cut->sectors, out.start_utc), mets),
+                       target_parts(c, zeroed_case(c, every, out.start_utc), mets)};
   std::map<std::string, std::size_t> pollutants;
   for (std::size_t p = 0; p < c.pollutants.size(); ++p) {
     if (const PollutantInfo* info = find_pollutant(c.pollutants[p].name))
@@ -277,77 +361,11 @@ EmissionCut compute_emission_cut(const CaseSpec& c, const MetSeries& determinist
   for (const RuleSet& rs : rule_sets) {
     for (const Limit& l : rs.limits) {
       const auto it = pollutants.find(l.pollutant);
-      if (it == pollutants.end()) continue;
-      if (!daily_rule(l)) {
-        out.skipped.push_back(rs.id + " " + l.id + " (" + to_string(l.statistic) +
-                              ", not a daily statistic)");
-        continue;
-      }
-      const double b = rounding_boundary(l.level, l.rounding);
-      const auto sc = splits(c, chosen, l, it->second, rs);
-      const auto sa = splits(c, all, l, it->second, rs);
-      std::vector<CutScale> day_c, day_a;
-      for (std::size_t d = 0; d < sc.front().f.days(); ++d) {
-        bool complete = true;
-        for (const Split& s : sc) complete = complete && s.f.day_complete[d];
-        if (!complete) continue;
-        const double now = value_now(t, sc, d);
-        if (!(now > b)) continue;
-        CutRow r = row_of(rs, l, false, l.level, b);
-        r.day = sc.front().f.first_day + static_cast<std::int64_t>(d);
-        r.value = now;
-        r.chosen = target_scale(t, sc, d, b, false, [&](std::size_t m, std::size_t dd) {
-          return limit_day_scale(sc[m], dd, b);
-        });
-        r.all = target_scale(t, sa, d, b, false, [&](std::size_t m, std::size_t dd) {
-          return limit_day_scale(sa[m], dd, b);
-        });
-        day_c.push_back(r.chosen);
-        day_a.push_back(r.all);
-        out.rows.push_back(r);
-      }
-      if (day_c.size() > 1) {
-        CutRow r = row_of(rs, l, false, l.level, b);
-        r.whole_run = true;
-        r.chosen = whole_run(day_c);
-        r.all = whole_run(day_a);
-        out.rows.push_back(r);
-      }
+      if (it != pollutants.end()) add_limit_rows(c, parts, rs, l, it->second, out);
     }
     for (const AlertRule& a : rs.alerts) {
       const auto it = pollutants.find(a.pollutant);
-      if (it == pollutants.end()) continue;
-      if (t.kind == CutTargetKind::percentile) {
-        out.skipped.push_back(rs.id + " " + a.id +
-                              " (an episode has no value to take a percentile of: use "
-                              "at_most_members)");
-        continue;
-      }
-      const auto sc = splits(c, chosen, a, it->second, rs);
-      const auto sa = splits(c, all, a, it->second, rs);
-      std::vector<std::vector<double>> ac, aa;
-      for (const Split& s : sc) ac.push_back(alert_day_scales(s, a));
-      for (const Split& s : sa) aa.push_back(alert_day_scales(s, a));
-      std::vector<CutScale> day_c, day_a;
-      for (std::size_t d = 0; d < sc.front().f.days(); ++d) {
-        CutRow r = row_of(rs, a, true, a.threshold, a.threshold);
-        r.day = sc.front().f.first_day + static_cast<std::int64_t>(d);
-        r.chosen = target_scale(t, sc, d, a.threshold, true,
-                                [&](std::size_t m, std::size_t dd) { return ac[m][dd]; });
-        if (r.chosen.feasible && r.chosen.scale >= 1.0) continue;  // no episode that day now
-        r.all = target_scale(t, sa, d, a.threshold, true,
-                             [&](std::size_t m, std::size_t dd) { return aa[m][dd]; });
-        day_c.push_back(r.chosen);
-        day_a.push_back(r.all);
-        out.rows.push_back(r);
-      }
-      if (day_c.size() > 1) {
-        CutRow r = row_of(rs, a, true, a.threshold, a.threshold);
-        r.whole_run = true;
-        r.chosen = whole_run(day_c);
-        r.all = whole_run(day_a);
-        out.rows.push_back(r);
-      }
+      if (it != pollutants.end()) add_alert_rows(c, parts, rs, a, it->second, out);
     }
   }
   return out;

@@ -196,6 +196,134 @@ RuleVerification verify(const MonitorPollutant& m, const PairedValues& daily, co
   return v;
 }
 
+// The daily kinds to pair for pollutant `pol` (daily means first, then each rule's own), and
+// the limits that give daily calls; limits without daily calls get a note.
+std::vector<DailyKind> daily_kinds_of(const std::string& pol, const std::vector<RuleSet>& rules,
+                                      std::vector<std::pair<const RuleSet*, const Limit*>>& limits,
+                                      std::vector<std::string>& notes) {
+  std::vector<DailyKind> kinds = {DailyKind{StatisticKind::daily_mean, 1, 18}};
+  for (const RuleSet& rs : rules) {
+    for (const Limit& l : rs.limits) {
+      if (l.pollutant != pol) continue;
+      DailyKind k;
+      if (!daily_kind_of(l, k)) {
+        notes.push_back(rs.id + " " + l.id + ": " + to_string(l.statistic) +
+                        " gives no daily calls; not verified day by day");
+        continue;
+      }
+      limits.emplace_back(&rs, &l);
+      bool seen = false;
+      for (const DailyKind& e : kinds) seen = seen || e.key() == k.key();
+      if (!seen) kinds.push_back(k);
+    }
+  }
+  return kinds;
+}
+
+// The hour means of one monitor paired with the model, at the hours the monitor reports.
+PairedValues hour_pairs(const MonitorPollutant& m, const std::vector<double>& model,
+                        std::size_t n_hours) {
+  PairedValues h;
+  h.monitor = m.label;
+  h.pollutant = m.pollutant;
+  h.unit = m.unit;
+  h.averaging = "hour means";
+  h.level = PairingLevel::hour_means;
+  for (std::size_t i = 0; i < n_hours; ++i) {
+    if (std::isnan(m.observed[i])) continue;
+    h.key.push_back(static_cast<long long>(i));
+    h.observed.push_back(m.observed[i]);
+    h.modelled.push_back(model[i]);
+  }
+  return h;
+}
+
+// One pollutant's monitors, and what evaluating them produces.
+struct PollutantPairs {
+  std::vector<std::size_t> monitors;                     // indexes into the monitor list
+  std::vector<DailyKind> kinds;                          // the daily kinds paired
+  std::vector<std::pair<const RuleSet*, const Limit*>> limits;  // limits with daily calls
+  std::vector<std::vector<PairedValues>> daily_by_monitor;      // [monitor][kind]
+};
+
+// Hour and daily pairs of each monitor, and pooled over the monitors when there are several.
+void add_pairs(const std::vector<MonitorPollutant>& monitors,
+               const std::vector<std::vector<double>>& modelled,
+               const std::vector<HourRecord>& hours, int off, PollutantPairs& pp,
+               ModelEvaluation& ev) {
+  const bool pooled = pp.monitors.size() > 1;
+  PairedValues all_hours;
+  std::vector<PairedValues> all_daily(pp.kinds.size());
+  for (std::size_t idx : pp.monitors) {
+    const MonitorPollutant& m = monitors[idx];
+    PairedValues h = hour_pairs(m, modelled[idx], hours.size());
+    if (pooled) append(all_hours, h);
+    finish(h);
+    ev.pairs.push_back(std::move(h));
+    const MaskedPair mp = masked(m, modelled[idx], hours);
+    pp.daily_by_monitor.emplace_back();
+    for (std::size_t k = 0; k < pp.kinds.size(); ++k) {
+      PairedValues d = daily_pairs(m, mp, pp.kinds[k], off);
+      if (pooled) append(all_daily[k], d);
+      finish(d);
+      pp.daily_by_monitor.back().push_back(d);
+      ev.pairs.push_back(std::move(d));
+    }
+    ev.profiles.push_back(profiles_of(m, modelled[idx], hours));
+  }
+  if (!pooled) return;
+  const MonitorPollutant& first = monitors[pp.monitors.front()];
+  all_hours.monitor = "all monitors";
+  all_hours.pollutant = first.pollutant;
+  all_hours.unit = first.unit;
+  all_hours.averaging = "hour means";
+  finish(all_hours);
+  ev.pairs.push_back(std::move(all_hours));
+  for (std::size_t k = 0; k < pp.kinds.size(); ++k) {
+    PairedValues& d = all_daily[k];
+    d.monitor = "all monitors";
+    d.pollutant = first.pollutant;
+    d.unit = first.unit;
+    d.averaging = pp.daily_by_monitor.front()[k].averaging;
+    d.level = pp.daily_by_monitor.front()[k].level;
+    finish(d);
+    ev.pairs.push_back(std::move(d));
+  }
+}
+
+// Day-by-day exceedance calls of each daily limit, per monitor and pooled.
+void add_verifications(const std::vector<MonitorPollutant>& monitors, const PollutantPairs& pp,
+                       ModelEvaluation& ev) {
+  const bool pooled = pp.monitors.size() > 1;
+  for (const auto& [rs, l] : pp.limits) {
+    DailyKind k;
+    daily_kind_of(*l, k);
+    std::size_t which = 0;
+    for (std::size_t e = 0; e < pp.kinds.size(); ++e) {
+      if (pp.kinds[e].key() == k.key()) which = e;
+    }
+    RuleVerification pooled_v;
+    for (std::size_t j = 0; j < pp.monitors.size(); ++j) {
+      RuleVerification v = verify(monitors[pp.monitors[j]], pp.daily_by_monitor[j][which], *rs, *l);
+      if (pooled && pooled_v.limit_id.empty()) {
+        pooled_v = v;
+      } else if (pooled) {
+        pooled_v.days.insert(pooled_v.days.end(), v.days.begin(), v.days.end());
+        pooled_v.table.a += v.table.a;
+        pooled_v.table.b += v.table.b;
+        pooled_v.table.c += v.table.c;
+        pooled_v.table.d += v.table.d;
+      }
+      ev.verifications.push_back(std::move(v));
+    }
+    if (pooled) {
+      pooled_v.monitor = "all monitors";
+      pooled_v.scores = categorical_scores(pooled_v.table);
+      ev.verifications.push_back(std::move(pooled_v));
+    }
+  }
+}
+
 }  // namespace
 
 ModelEvaluation evaluate_against_monitors(const std::vector<MonitorPollutant>& monitors,
@@ -216,107 +344,13 @@ ModelEvaluation evaluate_against_monitors(const std::vector<MonitorPollutant>& m
     }
   }
   for (const std::string& pol : pollutants) {
-    std::vector<std::size_t> idx;
+    PollutantPairs pp;
     for (std::size_t k = 0; k < monitors.size(); ++k) {
-      if (monitors[k].pollutant == pol) idx.push_back(k);
+      if (monitors[k].pollutant == pol) pp.monitors.push_back(k);
     }
-    const bool pooled = idx.size() > 1;
-    // The daily kinds: daily means first, then each rule's own.
-    std::vector<DailyKind> kinds = {DailyKind{StatisticKind::daily_mean, 1, 18}};
-    std::vector<std::pair<const RuleSet*, const Limit*>> limits;
-    for (const RuleSet& rs : rules) {
-      for (const Limit& l : rs.limits) {
-        if (l.pollutant != pol) continue;
-        DailyKind k;
-        if (!daily_kind_of(l, k)) {
-          ev.notes.push_back(rs.id + " " + l.id + ": " + to_string(l.statistic) +
-                             " gives no daily calls; not verified day by day");
-          continue;
-        }
-        limits.emplace_back(&rs, &l);
-        bool seen = false;
-        for (const DailyKind& e : kinds) seen = seen || e.key() == k.key();
-        if (!seen) kinds.push_back(k);
-      }
-    }
-    PairedValues all_hours;
-    std::vector<PairedValues> all_daily(kinds.size());
-    std::vector<std::vector<PairedValues>> daily_by_monitor(idx.size());
-    for (std::size_t j = 0; j < idx.size(); ++j) {
-      const MonitorPollutant& m = monitors[idx[j]];
-      const std::vector<double>& model = modelled[idx[j]];
-      PairedValues h;
-      h.monitor = m.label;
-      h.pollutant = pol;
-      h.unit = m.unit;
-      h.averaging = "hour means";
-      h.level = PairingLevel::hour_means;
-      for (std::size_t i = 0; i < hours.size(); ++i) {
-        if (std::isnan(m.observed[i])) continue;
-        h.key.push_back(static_cast<long long>(i));
-        h.observed.push_back(m.observed[i]);
-        h.modelled.push_back(model[i]);
-      }
-      if (pooled) append(all_hours, h);
-      finish(h);
-      ev.pairs.push_back(std::move(h));
-      const MaskedPair mp = masked(m, model, hours);
-      for (std::size_t k = 0; k < kinds.size(); ++k) {
-        PairedValues d = daily_pairs(m, mp, kinds[k], off);
-        if (pooled) append(all_daily[k], d);
-        finish(d);
-        daily_by_monitor[j].push_back(d);
-        ev.pairs.push_back(std::move(d));
-      }
-      ev.profiles.push_back(profiles_of(m, model, hours));
-    }
-    if (pooled) {
-      all_hours.monitor = "all monitors";
-      all_hours.pollutant = pol;
-      all_hours.unit = monitors[idx.front()].unit;
-      all_hours.averaging = "hour means";
-      finish(all_hours);
-      ev.pairs.push_back(std::move(all_hours));
-      for (std::size_t k = 0; k < kinds.size(); ++k) {
-        PairedValues& d = all_daily[k];
-        d.monitor = "all monitors";
-        d.pollutant = pol;
-        d.unit = monitors[idx.front()].unit;
-        d.averaging = daily_by_monitor.front()[k].averaging;
-        d.level = daily_by_monitor.front()[k].level;
-        finish(d);
-        ev.pairs.push_back(std::move(d));
-      }
-    }
-    for (const auto& [rs, l] : limits) {
-      DailyKind k;
-      daily_kind_of(*l, k);
-      std::size_t which = 0;
-      for (std::size_t e = 0; e < kinds.size(); ++e) {
-        if (kinds[e].key() == k.key()) which = e;
-      }
-      RuleVerification pooled_v;
-      for (std::size_t j = 0; j < idx.size(); ++j) {
-        RuleVerification v = verify(monitors[idx[j]], daily_by_monitor[j][which], *rs, *l);
-        if (pooled) {
-          if (pooled_v.limit_id.empty())
-            pooled_v = v;
-          else {
-            pooled_v.days.insert(pooled_v.days.end(), v.days.begin(), v.days.end());
-            pooled_v.table.a += v.table.a;
-            pooled_v.table.b += v.table.b;
-            pooled_v.table.c += v.table.c;
-            pooled_v.table.d += v.table.d;
-          }
-        }
-        ev.verifications.push_back(std::move(v));
-      }
-      if (pooled) {
-        pooled_v.monitor = "all monitors";
-        pooled_v.scores = categorical_scores(pooled_v.table);
-        ev.verifications.push_back(std::move(pooled_v));
-      }
-    }
+    pp.kinds = daily_kinds_of(pol, rules, pp.limits, ev.notes);
+    add_pairs(monitors, modelled, hours, off, pp, ev);
+    add_verifications(monitors, pp, ev);
   }
   return ev;
 }

@@ -6,6 +6,7 @@
 #include <random>
 
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/percentile.hpp"
 #include "lidbox/base/text.hpp"
 
 namespace lidbox {
@@ -33,17 +34,17 @@ std::pair<std::string, ScalePrior> parse_prior(const std::string& text, const st
   return {name, p};
 }
 
-FitDesign build_fit_design(const CaseSpec& c, const RunResult& r,
-                           const std::vector<MonitorPollutant>& monitors,
-                           const SectorFitOptions& o) {
+namespace {
+
+// Refuses monitors of several pollutants, weights that are not one positive number per
+// monitor, and held sectors the case does not have.
+void check_fit_inputs(const CaseSpec& c, const std::vector<MonitorPollutant>& monitors,
+                      const SectorFitOptions& o) {
   if (monitors.empty()) throw InternalError("build_fit_design: no monitors");
-  FitDesign d;
-  d.pollutant = monitors.front().pollutant;
-  d.unit = monitors.front().unit;
-  d.case_index = monitors.front().case_index;
+  const std::string& pollutant = monitors.front().pollutant;
   for (const auto& m : monitors) {
-    if (m.pollutant != d.pollutant) {
-      throw InputError("--fit", "monitors of " + d.pollutant + " and " + m.pollutant,
+    if (m.pollutant != pollutant) {
+      throw InputError("--fit", "monitors of " + pollutant + " and " + m.pollutant,
                        "one pollutant to fit (choose it with --pollutant)");
     }
   }
@@ -56,16 +57,21 @@ FitDesign build_fit_design(const CaseSpec& c, const RunResult& r,
       throw InputError("--weights", "weight " + format_number(w), "a positive number");
     }
   }
-  const std::size_t p = d.case_index;
-  const std::size_t T = r.hours.size();
-  d.hours = T;
-  d.fixed_total = model_part(c, r, p, 1);
-  const std::vector<double> background = model_part(c, r, p, 0);
-  // Hours paired at any monitor: a column is "zero" when it is zero at all of them.
-  std::vector<bool> paired(T, false);
-  for (const auto& m : monitors) {
-    for (std::size_t i = 0; i < T; ++i) paired[i] = paired[i] || !std::isnan(m.observed[i]);
+  std::vector<std::string> names;
+  for (const auto& sec : c.sectors) names.push_back(sec.name);
+  for (const std::string& h : o.hold) {
+    if (std::find(names.begin(), names.end(), h) == names.end()) {
+      throw InputError("--hold " + h,
+                       "\"" + h + "\", not a sector of " + c.file + did_you_mean(h, names),
+                       "one of " + join(names));
+    }
   }
+}
+
+// The columns to fit (offset, background, sectors), and the parts held at their case values.
+void add_fit_columns(const CaseSpec& c, const RunResult& r, const std::vector<bool>& paired,
+                     const SectorFitOptions& o, FitDesign& d) {
+  const std::size_t p = d.case_index, T = d.hours;
   auto all_zero = [&](const std::vector<double>& s) {
     for (std::size_t i = 0; i < T; ++i) {
       if (paired[i] && s[i] != 0.0) return false;
@@ -76,47 +82,40 @@ FitDesign build_fit_design(const CaseSpec& c, const RunResult& r,
     d.columns.push_back({FitColumn::Kind::offset, "offset", 0});
     d.column_series.emplace_back(T, 1.0);
   }
+  std::vector<double> background = model_part(c, r, p, 0);
   if (o.background && !all_zero(background)) {
     d.columns.push_back({FitColumn::Kind::background, "background", 0});
-    d.column_series.push_back(background);
+    d.column_series.push_back(std::move(background));
   } else {
     for (std::size_t i = 0; i < T; ++i) d.fixed_total[i] += background[i];
     d.left_out.push_back(o.background ? "background: zero at every paired hour, held at 1"
                                       : "background: held at 1 (--no-background)");
-  }
-  for (const std::string& h : o.hold) {
-    bool known = false;
-    for (const auto& sec : c.sectors) known = known || sec.name == h;
-    if (!known) {
-      std::vector<std::string> names;
-      for (const auto& sec : c.sectors) names.push_back(sec.name);
-      throw InputError("--hold " + h,
-                       "\"" + h + "\", not a sector of " + c.file + did_you_mean(h, names),
-                       "one of " + join(names));
-    }
   }
   for (std::size_t s = 0; s < c.sectors.size(); ++s) {
     std::vector<double> part = model_part(c, r, p, 2 + s);
     if (std::find(o.hold.begin(), o.hold.end(), c.sectors[s].name) != o.hold.end()) {
       for (std::size_t i = 0; i < T; ++i) d.fixed_total[i] += part[i];
       d.left_out.push_back(c.sectors[s].name + ": held at 1 (--hold)");
-      continue;
-    }
-    if (all_zero(part)) {
+    } else if (all_zero(part)) {
       d.left_out.push_back(c.sectors[s].name + ": no " + d.pollutant +
                            " at any paired hour, not fitted");
-      continue;
+    } else {
+      d.columns.push_back({FitColumn::Kind::sector, c.sectors[s].name, s});
+      d.column_series.push_back(std::move(part));
     }
-    d.columns.push_back({FitColumn::Kind::sector, c.sectors[s].name, s});
-    d.column_series.push_back(std::move(part));
   }
+}
+
+// One row per paired hour and monitor: the columns' values, observed minus fixed, weight.
+void add_fit_rows(const std::vector<MonitorPollutant>& monitors, const SectorFitOptions& o,
+                  FitDesign& d) {
   std::size_t rows = 0;
   for (const auto& m : monitors) rows += m.pairs;
   d.K = DenseMatrix(rows, d.columns.size());
   std::size_t row = 0;
   for (std::size_t k = 0; k < monitors.size(); ++k) {
     const double w = o.monitor_weights.empty() ? 1.0 : o.monitor_weights[k];
-    for (std::size_t i = 0; i < T; ++i) {
+    for (std::size_t i = 0; i < d.hours; ++i) {
       const double obs = monitors[k].observed[i];
       if (std::isnan(obs)) continue;
       for (std::size_t j = 0; j < d.columns.size(); ++j) d.K(row, j) = d.column_series[j][i];
@@ -127,6 +126,27 @@ FitDesign build_fit_design(const CaseSpec& c, const RunResult& r,
       ++row;
     }
   }
+}
+
+}  // namespace
+
+FitDesign build_fit_design(const CaseSpec& c, const RunResult& r,
+                           const std::vector<MonitorPollutant>& monitors,
+                           const SectorFitOptions& o) {
+  check_fit_inputs(c, monitors, o);
+  FitDesign d;
+  d.pollutant = monitors.front().pollutant;
+  d.unit = monitors.front().unit;
+  d.case_index = monitors.front().case_index;
+  d.hours = r.hours.size();
+  d.fixed_total = model_part(c, r, d.case_index, 1);
+  // Hours paired at any monitor: a column is "zero" when it is zero at all of them.
+  std::vector<bool> paired(d.hours, false);
+  for (const auto& m : monitors) {
+    for (std::size_t i = 0; i < d.hours; ++i) paired[i] = paired[i] || !std::isnan(m.observed[i]);
+  }
+  add_fit_columns(c, r, paired, o, d);
+  add_fit_rows(monitors, o, d);
   return d;
 }
 
@@ -261,213 +281,223 @@ std::vector<std::string> names_of(const FitDesign& d) {
 
 }  // namespace
 
-SectorFitReport fit_sectors(const FitDesign& d, const SectorFitOptions& o) {
+namespace {
+
+// Refuses a fit with nothing to fit, fewer rows than unknowns, or a prior on no column.
+void check_fit_request(const FitDesign& d, const SectorFitOptions& o, std::size_t rows) {
   const std::size_t p = d.columns.size();
-  const std::size_t n_free = n_free_of(d);
-  SectorFitReport rep;
-  rep.method = o.method;
-  rep.pollutant = d.pollutant;
-  rep.unit = d.unit;
-  rep.rows = d.y.size();
-  rep.left_out = d.left_out;
-  rep.bootstrap = o.bootstrap;
-  rep.block_hours = o.block_hours;
-  rep.seed = o.seed;
-  if (p == n_free) {
+  if (p == n_free_of(d)) {
     throw InputError("--fit",
                      "nothing to fit for " + d.pollutant + " (" + join(d.left_out, "; ") + ")",
                      "a background or a sector with " + d.pollutant + " at the paired hours");
   }
-  if (rep.rows <= p) {
+  if (rows <= p) {
     throw InputError("--fit",
-                     std::to_string(rep.rows) + " paired hours for " + std::to_string(p) +
+                     std::to_string(rows) + " paired hours for " + std::to_string(p) +
                          " unknowns (" + join(names_of(d)) + ")",
                      "more paired hours than unknowns");
   }
+  const auto names = names_of(d);
   for (const auto& [name, prior] : o.priors) {
-    const auto names = names_of(d);
     if (std::find(names.begin(), names.end(), name) == names.end()) {
       throw InputError("--prior " + name,
                        "\"" + name + "\", not a fitted column" + did_you_mean(name, names),
                        "one of " + join(names));
     }
   }
-  const DenseMatrix G = gram_of(d);
-  std::vector<double> vif;
-  collinearity(G, p, n_free, rep.condition_number, vif, d);
-  if (!(rep.condition_number < 1e10)) {
-    std::vector<std::string> dependent;
-    for (std::size_t j = n_free; j < p; ++j) {
-      if (!(vif[j] < 1e6)) dependent.push_back(d.columns[j].name);
-    }
-    if (dependent.empty()) dependent = names_of(d);
-    throw InputError(
-        "the fit's columns " + join(dependent),
-        "hour-by-hour responses at the monitors that are linearly dependent (condition number " +
-            format_number(rep.condition_number, 3) + ")",
-        "sectors whose responses differ in time; merge such sectors into one, or hold one "
-        "at its case value with --hold NAME");
+}
+
+// Refuses columns so collinear that no scale is determined (condition number ≥ 1e10).
+void refuse_dependent_columns(const FitDesign& d, double condition_number,
+                              const std::vector<double>& vif) {
+  if (condition_number < 1e10) return;
+  std::vector<std::string> dependent;
+  for (std::size_t j = n_free_of(d); j < d.columns.size(); ++j) {
+    if (!(vif[j] < 1e6)) dependent.push_back(d.columns[j].name);
   }
-  // Weighted design for the QR.
-  DenseMatrix Aw(rep.rows, p);
-  std::vector<double> bw(rep.rows);
-  for (std::size_t r = 0; r < rep.rows; ++r) {
+  if (dependent.empty()) dependent = names_of(d);
+  throw InputError(
+      "the fit's columns " + join(dependent),
+      "hour-by-hour responses at the monitors that are linearly dependent (condition number " +
+          format_number(condition_number, 3) + ")",
+      "sectors whose responses differ in time; merge such sectors into one, or hold one "
+      "at its case value with --hold NAME");
+}
+
+// NNLS through the QR of the weighted design (Lawson & Hanson; nnls.hpp).
+NnlsSolution nnls_of(const FitDesign& d) {
+  const std::size_t p = d.columns.size();
+  const std::size_t rows = d.y.size();
+  DenseMatrix Aw(rows, p);
+  std::vector<double> bw(rows);
+  for (std::size_t r = 0; r < rows; ++r) {
     const double s = std::sqrt(d.weight[r]);
     for (std::size_t j = 0; j < p; ++j) Aw(r, j) = s * d.K(r, j);
     bw[r] = s * d.y[r];
   }
-  const DenseMatrix R = qr_triangle(Aw, bw);
-  const NnlsSolution sol = nnls_from_triangle(R, n_free);
-  if (!sol.converged) rep.warnings.push_back("NNLS stopped at its iteration limit (3 n)");
-  std::vector<bool> active(p);
-  std::size_t pF = 0;
-  for (std::size_t j = 0; j < p; ++j) {
-    active[j] = !sol.at_bound[j];
-    pF += active[j] ? 1 : 0;
-  }
-  double rss = sol.residual_norm * sol.residual_norm;
-  const double dof_nnls = static_cast<double>(rep.rows) - static_cast<double>(pF);
-  const double sigma2_nnls = rss / dof_nnls;
-  std::vector<double> x = sol.x;
-  std::vector<double> se(p, kNaN);
-  std::vector<ScalePrior> prior(p);
+  return nnls_from_triangle(qr_triangle(Aw, bw), n_free_of(d));
+}
+
+// The priors of every column: the user's, or a flat one for the offset.
+std::vector<ScalePrior> priors_of(const FitDesign& d, const SectorFitOptions& o) {
   double ymax = 0.0;
   for (double v : d.y) ymax = std::max(ymax, std::fabs(v));
-  for (std::size_t j = 0; j < p; ++j) {
+  std::vector<ScalePrior> prior(d.columns.size());
+  for (std::size_t j = 0; j < d.columns.size(); ++j) {
     if (d.columns[j].kind == FitColumn::Kind::offset) prior[j] = {0.0, 1e3 * (ymax + 1.0)};
     const auto it = o.priors.find(d.columns[j].name);
     if (it != o.priors.end()) prior[j] = it->second;
   }
-  if (o.method == FitMethod::nnls) {
-    // Gaussian standard errors on the columns away from the bound.
-    std::vector<std::size_t> F;
-    for (std::size_t j = 0; j < p; ++j) {
-      if (active[j]) F.push_back(j);
-    }
-    DenseMatrix GF(F.size(), F.size()), inv;
-    for (std::size_t a = 0; a < F.size(); ++a) {
-      for (std::size_t b = 0; b < F.size(); ++b) GF(a, b) = G(F[a], F[b]);
-    }
-    if (invert_spd(GF, inv)) {
-      for (std::size_t a = 0; a < F.size(); ++a) se[F[a]] = std::sqrt(sigma2_nnls * inv(a, a));
-    }
-    rep.dofs = static_cast<double>(pF);
-    rep.residual_dof = dof_nnls;
-    rep.residual_sd = std::sqrt(sigma2_nnls);
-  } else {
-    rep.observation_error_estimated = !o.observation_error.has_value();
-    const double sigma_o = o.observation_error ? *o.observation_error : std::sqrt(sigma2_nnls);
-    if (!(sigma_o > 0.0)) {
-      throw InputError("--obs-error", "an observation error of " + format_number(sigma_o),
-                       "a positive number (a noise-free monitor needs no prior: use --fit nnls)");
-    }
-    rep.observation_error = sigma_o;
-    DenseMatrix S;
-    if (!bayes_from_gram(G, sigma_o * sigma_o, prior, x, &S, &rep.dofs)) {
-      throw InternalError("Bayesian scaling: the posterior precision is not positive definite");
-    }
-    for (std::size_t j = 0; j < p; ++j) se[j] = std::sqrt(S(j, j));
-    rss = weighted_rss(d, x);
-    rep.residual_dof = static_cast<double>(rep.rows) - rep.dofs;
-    rep.residual_sd = std::sqrt(rss / rep.residual_dof);
-  }
-  // R² against the observed values (fixed parts added back).
-  {
-    double sw = 0.0, sy = 0.0;
-    for (std::size_t r = 0; r < rep.rows; ++r) {
-      const double yo = d.y[r] + d.fixed_total[d.row_hour[r]];
-      sw += d.weight[r];
-      sy += d.weight[r] * yo;
-    }
-    const double ybar = sy / sw;
-    double tss = 0.0;
-    for (std::size_t r = 0; r < rep.rows; ++r) {
-      const double e = d.y[r] + d.fixed_total[d.row_hour[r]] - ybar;
-      tss += d.weight[r] * e * e;
-    }
-    rep.r2 = tss > 0.0 ? 1.0 - rss / tss : kNaN;
-  }
-  // Bootstrap.
-  std::vector<std::vector<double>> boot(p);
-  if (o.bootstrap > 0) {
-    if (o.block_hours < 1 || static_cast<std::size_t>(o.block_hours) > d.hours) {
-      throw InputError("--block-hours", std::to_string(o.block_hours),
-                       "from 1 to the run's " + std::to_string(d.hours) + " hours");
-    }
-    const std::size_t T = d.hours, L = static_cast<std::size_t>(o.block_hours);
-    const std::size_t q = p + 1, qq = q * q;
-    std::vector<double> prefix((T + 1) * qq, 0.0);
-    std::vector<double> z(q);
-    // Per-hour contributions (rows are ordered by monitor, then hour), then running sums.
-    std::vector<double> hour_gram(T * qq, 0.0);
-    for (std::size_t row = 0; row < rep.rows; ++row) {
-      for (std::size_t j = 0; j < p; ++j) z[j] = d.K(row, j);
-      z[p] = d.y[row];
-      double* h = &hour_gram[d.row_hour[row] * qq];
-      const double w = d.weight[row];
-      for (std::size_t a = 0; a < q; ++a) {
-        for (std::size_t b = 0; b < q; ++b) h[a * q + b] += w * z[a] * z[b];
-      }
-    }
-    for (std::size_t t = 0; t < T; ++t) {
-      for (std::size_t e = 0; e < qq; ++e)
-        prefix[(t + 1) * qq + e] = prefix[t * qq + e] + hour_gram[t * qq + e];
-    }
-    const std::size_t blocks = (T + L - 1) / L;
-    std::mt19937_64 rng(o.seed);
-    std::uniform_int_distribution<std::size_t> start(0, T - L);
-    DenseMatrix Gb(q, q);
-    std::vector<double> xb;
-    for (int b = 0; b < o.bootstrap; ++b) {
-      std::fill(Gb.v.begin(), Gb.v.end(), 0.0);
-      for (std::size_t k = 0; k < blocks; ++k) {
-        const std::size_t s = start(rng);
-        const double* hi = &prefix[(s + L) * qq];
-        const double* lo = &prefix[s * qq];
-        for (std::size_t e = 0; e < qq; ++e) Gb.v[e] += hi[e] - lo[e];
-      }
-      if (o.method == FitMethod::nnls) {
-        const NnlsSolution sb = nnls_from_triangle(cholesky_triangle(Gb), n_free);
-        xb = sb.x;
-      } else if (!bayes_from_gram(Gb, rep.observation_error * rep.observation_error, prior, xb,
-                                  nullptr, nullptr)) {
-        continue;
-      }
-      for (std::size_t j = 0; j < p; ++j) boot[j].push_back(xb[j]);
-    }
-  }
+  return prior;
+}
+
+struct FitSolution {
+  std::vector<double> x;
+  std::vector<double> se;
+  double rss = 0.0;
+};
+
+// Gaussian standard errors of the NNLS scales on the columns away from the bound.
+FitSolution nnls_solution(const DenseMatrix& G, const NnlsSolution& sol, SectorFitReport& rep) {
+  const std::size_t p = sol.x.size();
+  std::vector<std::size_t> F;
   for (std::size_t j = 0; j < p; ++j) {
-    FitEstimate e;
-    e.name = d.columns[j].name;
-    e.value = x[j];
-    e.at_bound = o.method == FitMethod::nnls && sol.at_bound[j];
-    e.gaussian_se = se[j];
-    e.t = e.at_bound ? kNaN : x[j] / se[j];
-    e.vif = vif[j];
-    e.prior_mean = prior[j].mean;
-    e.prior_sd = prior[j].sd;
-    e.bootstrap_se = e.bootstrap_low = e.bootstrap_high = kNaN;
-    if (boot[j].size() >= 2) {
-      double m = 0.0;
-      for (double v : boot[j]) m += v;
-      m /= static_cast<double>(boot[j].size());
-      double s2 = 0.0;
-      for (double v : boot[j]) s2 += (v - m) * (v - m);
-      e.bootstrap_se = std::sqrt(s2 / static_cast<double>(boot[j].size() - 1));
-      std::vector<double> sorted = boot[j];
-      std::sort(sorted.begin(), sorted.end());
-      auto pct = [&](double q) {
-        const double pos = q * static_cast<double>(sorted.size() - 1);
-        const auto lo = static_cast<std::size_t>(std::floor(pos));
-        const std::size_t hi = std::min(lo + 1, sorted.size() - 1);
-        return sorted[lo] + (pos - static_cast<double>(lo)) * (sorted[hi] - sorted[lo]);
-      };
-      e.bootstrap_low = pct(0.025);
-      e.bootstrap_high = pct(0.975);
-    }
-    rep.estimates.push_back(e);
+    if (!sol.at_bound[j]) F.push_back(j);
   }
-  // Warnings a reader must see.
+  FitSolution s{sol.x, std::vector<double>(p, kNaN), sol.residual_norm * sol.residual_norm};
+  const double dof = static_cast<double>(rep.rows) - static_cast<double>(F.size());
+  const double sigma2 = s.rss / dof;
+  DenseMatrix GF(F.size(), F.size()), inv;
+  for (std::size_t a = 0; a < F.size(); ++a) {
+    for (std::size_t b = 0; b < F.size(); ++b) GF(a, b) = G(F[a], F[b]);
+  }
+  if (invert_spd(GF, inv)) {
+    for (std::size_t a = 0; a < F.size(); ++a) s.se[F[a]] = std::sqrt(sigma2 * inv(a, a));
+  }
+  rep.dofs = static_cast<double>(F.size());
+  rep.residual_dof = dof;
+  rep.residual_sd = std::sqrt(sigma2);
+  return s;
+}
+
+// Bayesian posterior (Rodgers 2000; see sector_fit.hpp), with σ_o given or taken from the NNLS residual.
+FitSolution bayes_solution(const FitDesign& d, const DenseMatrix& G, const NnlsSolution& sol,
+                           const std::vector<ScalePrior>& prior, const SectorFitOptions& o,
+                           SectorFitReport& rep) {
+  std::size_t pF = 0;
+  for (bool b : sol.at_bound) pF += b ? 0 : 1;
+  const double sigma2_nnls = sol.residual_norm * sol.residual_norm /
+                             (static_cast<double>(rep.rows) - static_cast<double>(pF));
+  rep.observation_error_estimated = !o.observation_error.has_value();
+  const double sigma_o = o.observation_error ? *o.observation_error : std::sqrt(sigma2_nnls);
+  if (!(sigma_o > 0.0)) {
+    throw InputError("--obs-error", "an observation error of " + format_number(sigma_o),
+                     "a positive number (a noise-free monitor needs no prior: use --fit nnls)");
+  }
+  rep.observation_error = sigma_o;
+  FitSolution s;
+  DenseMatrix S;
+  if (!bayes_from_gram(G, sigma_o * sigma_o, prior, s.x, &S, &rep.dofs)) {
+    throw InternalError("Bayesian scaling: the posterior precision is not positive definite");
+  }
+  for (std::size_t j = 0; j < s.x.size(); ++j) s.se.push_back(std::sqrt(S(j, j)));
+  s.rss = weighted_rss(d, s.x);
+  rep.residual_dof = static_cast<double>(rep.rows) - rep.dofs;
+  rep.residual_sd = std::sqrt(s.rss / rep.residual_dof);
+  return s;
+}
+
+// Weighted R² against the observed values (fixed parts added back).
+double weighted_r2(const FitDesign& d, double rss) {
+  double sw = 0.0, sy = 0.0;
+  for (std::size_t r = 0; r < d.y.size(); ++r) {
+    sw += d.weight[r];
+    sy += d.weight[r] * (d.y[r] + d.fixed_total[d.row_hour[r]]);
+  }
+  const double ybar = sy / sw;
+  double tss = 0.0;
+  for (std::size_t r = 0; r < d.y.size(); ++r) {
+    const double e = d.y[r] + d.fixed_total[d.row_hour[r]] - ybar;
+    tss += d.weight[r] * e * e;
+  }
+  return tss > 0.0 ? 1.0 - rss / tss : kNaN;
+}
+
+// Running sums over hours of the per-hour Gram contributions: prefix[t] sums hours before t.
+std::vector<double> hourly_gram_prefix(const FitDesign& d) {
+  const std::size_t p = d.columns.size(), q = p + 1, qq = q * q, T = d.hours;
+  std::vector<double> hour_gram(T * qq, 0.0);
+  std::vector<double> z(q);
+  for (std::size_t row = 0; row < d.y.size(); ++row) {
+    for (std::size_t j = 0; j < p; ++j) z[j] = d.K(row, j);
+    z[p] = d.y[row];
+    double* h = &hour_gram[d.row_hour[row] * qq];
+    for (std::size_t a = 0; a < q; ++a) {
+      for (std::size_t b = 0; b < q; ++b) h[a * q + b] += d.weight[row] * z[a] * z[b];
+    }
+  }
+  std::vector<double> prefix((T + 1) * qq, 0.0);
+  for (std::size_t t = 0; t < T; ++t) {
+    for (std::size_t e = 0; e < qq; ++e)
+      prefix[(t + 1) * qq + e] = prefix[t * qq + e] + hour_gram[t * qq + e];
+  }
+  return prefix;
+}
+
+// Moving-block bootstrap over hours (Künsch 1989): the scales of each resample, per column.
+std::vector<std::vector<double>> bootstrap_scales(const FitDesign& d, const SectorFitOptions& o,
+                                                  const std::vector<ScalePrior>& prior,
+                                                  double observation_error) {
+  const std::size_t p = d.columns.size();
+  std::vector<std::vector<double>> boot(p);
+  if (o.bootstrap <= 0) return boot;
+  if (o.block_hours < 1 || static_cast<std::size_t>(o.block_hours) > d.hours) {
+    throw InputError("--block-hours", std::to_string(o.block_hours),
+                     "from 1 to the run's " + std::to_string(d.hours) + " hours");
+  }
+  const std::size_t T = d.hours, L = static_cast<std::size_t>(o.block_hours);
+  const std::size_t q = p + 1, qq = q * q;
+  const std::vector<double> prefix = hourly_gram_prefix(d);
+  const std::size_t blocks = (T + L - 1) / L;
+  std::mt19937_64 rng(o.seed);
+  std::uniform_int_distribution<std::size_t> start(0, T - L);
+  DenseMatrix Gb(q, q);
+  std::vector<double> xb;
+  for (int b = 0; b < o.bootstrap; ++b) {
+    std::fill(Gb.v.begin(), Gb.v.end(), 0.0);
+    for (std::size_t k = 0; k < blocks; ++k) {
+      const std::size_t s = start(rng);
+      const double* hi = &prefix[(s + L) * qq];
+      const double* lo = &prefix[s * qq];
+      for (std::size_t e = 0; e < qq; ++e) Gb.v[e] += hi[e] - lo[e];
+    }
+    if (o.method == FitMethod::nnls) {
+      xb = nnls_from_triangle(cholesky_triangle(Gb), n_free_of(d)).x;
+    } else if (!bayes_from_gram(Gb, observation_error * observation_error, prior, xb, nullptr,
+                                nullptr)) {
+      continue;
+    }
+    for (std::size_t j = 0; j < p; ++j) boot[j].push_back(xb[j]);
+  }
+  return boot;
+}
+
+// Standard error and 95 % interval of one column's bootstrap scales.
+void add_bootstrap_spread(FitEstimate& e, std::vector<double> boot) {
+  e.bootstrap_se = e.bootstrap_low = e.bootstrap_high = kNaN;
+  if (boot.size() < 2) return;
+  double m = 0.0;
+  for (double v : boot) m += v;
+  m /= static_cast<double>(boot.size());
+  double s2 = 0.0;
+  for (double v : boot) s2 += (v - m) * (v - m);
+  e.bootstrap_se = std::sqrt(s2 / static_cast<double>(boot.size() - 1));
+  e.bootstrap_low = percentile_linear(boot, 2.5);
+  e.bootstrap_high = percentile_linear(boot, 97.5);
+}
+
+// The warnings a reader of the fit must see.
+void add_fit_warnings(const SectorFitOptions& o, SectorFitReport& rep) {
   if (rep.condition_number > 30.0) {
     rep.warnings.push_back("collinear columns: condition number " +
                            format_number(rep.condition_number, 3) +
@@ -497,6 +527,47 @@ SectorFitReport fit_sectors(const FitDesign& d, const SectorFitOptions& o) {
                            " below 0.8, the range receptor-modelling practice expects "
                            "(EPA-450/4-87-010 §3.3)");
   }
+}
+
+}  // namespace
+
+SectorFitReport fit_sectors(const FitDesign& d, const SectorFitOptions& o) {
+  const std::size_t p = d.columns.size();
+  SectorFitReport rep;
+  rep.method = o.method;
+  rep.pollutant = d.pollutant;
+  rep.unit = d.unit;
+  rep.rows = d.y.size();
+  rep.left_out = d.left_out;
+  rep.bootstrap = o.bootstrap;
+  rep.block_hours = o.block_hours;
+  rep.seed = o.seed;
+  check_fit_request(d, o, rep.rows);
+  const DenseMatrix G = gram_of(d);
+  std::vector<double> vif;
+  collinearity(G, p, n_free_of(d), rep.condition_number, vif, d);
+  refuse_dependent_columns(d, rep.condition_number, vif);
+  const NnlsSolution sol = nnls_of(d);
+  if (!sol.converged) rep.warnings.push_back("NNLS stopped at its iteration limit (3 n)");
+  const std::vector<ScalePrior> prior = priors_of(d, o);
+  const FitSolution fit = o.method == FitMethod::nnls ? nnls_solution(G, sol, rep)
+                                                      : bayes_solution(d, G, sol, prior, o, rep);
+  rep.r2 = weighted_r2(d, fit.rss);
+  std::vector<std::vector<double>> boot = bootstrap_scales(d, o, prior, rep.observation_error);
+  for (std::size_t j = 0; j < p; ++j) {
+    FitEstimate e;
+    e.name = d.columns[j].name;
+    e.value = fit.x[j];
+    e.at_bound = o.method == FitMethod::nnls && sol.at_bound[j];
+    e.gaussian_se = fit.se[j];
+    e.t = e.at_bound ? kNaN : fit.x[j] / fit.se[j];
+    e.vif = vif[j];
+    e.prior_mean = prior[j].mean;
+    e.prior_sd = prior[j].sd;
+    add_bootstrap_spread(e, std::move(boot[j]));
+    rep.estimates.push_back(e);
+  }
+  add_fit_warnings(o, rep);
   return rep;
 }
 

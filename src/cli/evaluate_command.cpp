@@ -116,35 +116,28 @@ SectorFitOptions fit_options(const EvaluateArgs& a, std::size_t monitors) {
   return o;
 }
 
-void run(const EvaluateArgs& a) {
-  const CaseSpec c = load_case(a.case_file);
-  const BelowDetection below = parse_below_detection(a.below, "--below-detection");
-  // Read every monitor before the run, so that a bad file is refused at once.
+// Every monitor file, read before the run so that a bad file is refused at once.
+std::vector<Observations> read_monitor_files(const std::vector<std::string>& paths) {
   std::vector<Observations> observations;
-  for (std::size_t k = 0; k < a.monitors.size(); ++k) {
+  for (std::size_t k = 0; k < paths.size(); ++k) {
     for (std::size_t j = 0; j < k; ++j) {
-      if (std::filesystem::path(a.monitors[j]).lexically_normal() ==
-          std::filesystem::path(a.monitors[k]).lexically_normal()) {
-        throw InputError(a.monitors[k], "given twice",
+      if (std::filesystem::path(paths[j]).lexically_normal() ==
+          std::filesystem::path(paths[k]).lexically_normal()) {
+        throw InputError(paths[k], "given twice",
                          "each monitor file once (its hours would count twice)");
       }
     }
-    observations.push_back(read_observations_csv(a.monitors[k]));
+    observations.push_back(read_observations_csv(paths[k]));
   }
-  const std::vector<RuleSet> rules = rules_for(c, a);
-  const MetSeries met = read_case_met(c);
-  Progress progress;
-  const RunResult r =
-      run_case(c, met, [&progress](double f, const char* s) { progress.update(f, s); });
-  progress.finish();
+  return observations;
+}
 
-  EvaluationReportInput in;
-  in.c = &c;
-  in.hours = &r.hours;
-  in.below = below;
-  for (const auto& rs : rules) in.rule_set_ids.push_back(rs.id);
+// The monitors paired with the run, labelled uniquely, with the model's series beside them.
+void pair_monitors(const CaseSpec& c, const RunResult& r,
+                   const std::vector<Observations>& observations, const EvaluateArgs& a,
+                   EvaluationReportInput& in) {
   for (const auto& obs : observations) {
-    for (auto& m : pair_monitor(c, r, obs, a.pollutant, below, &in.skipped))
+    for (auto& m : pair_monitor(c, r, obs, a.pollutant, in.below, &in.skipped))
       in.monitors.push_back(std::move(m));
   }
   // Labels name monitors in tables and charts: two files with one stem keep their paths.
@@ -154,6 +147,87 @@ void run(const EvaluateArgs& a) {
     }
   }
   for (const auto& m : in.monitors) in.modelled.push_back(model_total(c, r, m.case_index));
+}
+
+// The calibrated case run again: it must reproduce the fitted hour means (the engine is linear
+// in its sources), apart from an offset and what spin-up's convergence test changes. Runs from
+// the case's own folder (the output folder may not exist yet), with the original's paths.
+std::string rerun_check(const CaseSpec& c, const SectorFitReport& fit, const FitDesign& design,
+                        const std::string& label, const std::string& calibrated_name,
+                        const std::vector<double>& fitted) {
+  std::string base = std::filesystem::path(c.file).parent_path().string();
+  if (base.empty()) base = ".";
+  const CalibratedCase here = calibrated_case(c, read_text_file(c.file, c.file), fit, label, base);
+  const CaseSpec cc =
+      parse_case(here.text, (std::filesystem::path(base) / calibrated_name).string(), base);
+  const RunResult rc = run_case(cc, read_case_met(cc));
+  const std::vector<double> rerun = model_total(cc, rc, design.case_index);
+  double offset = fitted_scale(fit, "offset");
+  if (design.columns.empty() || design.columns.front().kind != FitColumn::Kind::offset)
+    offset = 0.0;
+  double worst = 0.0, scale = 0.0;
+  for (std::size_t i = 0; i < rerun.size(); ++i) {
+    worst = std::max(worst, std::fabs(rerun[i] + offset - fitted[i]));
+    scale = std::max(scale, std::fabs(fitted[i]));
+  }
+  return "the calibrated case, run again, reproduces the fitted hour means to " +
+         format_number(scale > 0 ? worst / scale : worst, 2) + " of their peak" +
+         (offset != 0.0 ? " (with the offset added)" : "");
+}
+
+// Fits the sectors' scales to the monitors, evaluates the fitted model, and writes the
+// calibrated case into `files`.
+void fit_and_calibrate(const CaseSpec& c, const RunResult& r, const std::vector<RuleSet>& rules,
+                       const EvaluateArgs& a, const std::string& dir, FitDesign& design,
+                       EvaluationReportInput& in, std::vector<OutputFile>& files) {
+  const SectorFitOptions opt = fit_options(a, in.monitors.size());
+  std::vector<std::string> pollutants;
+  for (const auto& m : in.monitors) {
+    if (std::find(pollutants.begin(), pollutants.end(), m.pollutant) == pollutants.end()) {
+      pollutants.push_back(m.pollutant);
+    }
+  }
+  if (pollutants.size() > 1) {
+    throw InputError("--fit", "monitors of " + join(pollutants),
+                     "one pollutant to fit: choose it with --pollutant");
+  }
+  design = build_fit_design(c, r, in.monitors, opt);
+  in.design = &design;
+  SectorFitReport fit = fit_sectors(design, opt);
+  for (const auto& m : in.monitors) fit.monitors.push_back(m.label);
+  fit.weights = opt.monitor_weights.empty() ? std::vector<double>(in.monitors.size(), 1.0)
+                                            : opt.monitor_weights;
+  const std::vector<double> fitted = fitted_series(design, fit);
+  in.fitted.assign(in.monitors.size(), fitted);
+  const std::string label = std::string(opt.method == FitMethod::nnls ? "NNLS" : "Bayesian") +
+                            " fit of " + fit.pollutant + " to " + join(fit.monitors);
+  in.after = evaluate_against_monitors(in.monitors, in.fitted, r.hours,
+                                       c.zone.standard_offset_s(), rules, "after the " + label);
+  const CalibratedCase cal = calibrated_case(c, read_text_file(c.file, c.file), fit, label, dir);
+  in.calibrated_case_name = c.name + "-calibrated.toml";
+  in.calibrated_notes = cal.notes;
+  in.calibrated_notes.push_back(
+      rerun_check(c, fit, design, label, in.calibrated_case_name, fitted));
+  in.fit = std::move(fit);
+  files.push_back({in.calibrated_case_name, cal.text});
+}
+
+void run(const EvaluateArgs& a) {
+  const CaseSpec c = load_case(a.case_file);
+  EvaluationReportInput in;
+  in.below = parse_below_detection(a.below, "--below-detection");
+  const std::vector<Observations> observations = read_monitor_files(a.monitors);
+  const std::vector<RuleSet> rules = rules_for(c, a);
+  const MetSeries met = read_case_met(c);
+  Progress progress;
+  const RunResult r =
+      run_case(c, met, [&progress](double f, const char* s) { progress.update(f, s); });
+  progress.finish();
+
+  in.c = &c;
+  in.hours = &r.hours;
+  for (const auto& rs : rules) in.rule_set_ids.push_back(rs.id);
+  pair_monitors(c, r, observations, a, in);
   in.before = evaluate_run(c, r, in.monitors, rules);
   if (c.ensemble) {
     // The members' daily probabilities per rule against the monitors' own day calls.
@@ -163,66 +237,12 @@ void run(const EvaluateArgs& a) {
     in.ensemble_members = ens.members.size();
     in.ensemble = verify_ensemble(in.before, ens.rules, a.seed);
   }
-
   const std::string dir = a.output_dir.empty()
                               ? (std::filesystem::path("outputs") / (c.name + "-evaluate")).string()
                               : a.output_dir;
   std::vector<OutputFile> files;
   FitDesign design;
-  if (!a.fit.empty()) {
-    const SectorFitOptions opt = fit_options(a, in.monitors.size());
-    std::vector<std::string> pollutants;
-    for (const auto& m : in.monitors) {
-      if (std::find(pollutants.begin(), pollutants.end(), m.pollutant) == pollutants.end()) {
-        pollutants.push_back(m.pollutant);
-      }
-    }
-    if (pollutants.size() > 1) {
-      throw InputError("--fit", "monitors of " + join(pollutants),
-                       "one pollutant to fit: choose it with --pollutant");
-    }
-    design = build_fit_design(c, r, in.monitors, opt);
-    in.design = &design;
-    SectorFitReport fit = fit_sectors(design, opt);
-    for (const auto& m : in.monitors) fit.monitors.push_back(m.label);
-    fit.weights = opt.monitor_weights.empty() ? std::vector<double>(in.monitors.size(), 1.0)
-                                              : opt.monitor_weights;
-    const std::vector<double> fitted = fitted_series(design, fit);
-    in.fitted.assign(in.monitors.size(), fitted);
-    const std::string label = std::string(opt.method == FitMethod::nnls ? "NNLS" : "Bayesian") +
-                              " fit of " + fit.pollutant + " to " + join(fit.monitors);
-    in.after = evaluate_against_monitors(in.monitors, in.fitted, r.hours,
-                                         c.zone.standard_offset_s(), rules, "after the " + label);
-    const CalibratedCase cal = calibrated_case(c, read_text_file(c.file, c.file), fit, label, dir);
-    in.calibrated_case_name = c.name + "-calibrated.toml";
-    in.calibrated_notes = cal.notes;
-    // The calibrated case run again: it must reproduce the fitted hour means (the engine is linear
-    // in its sources), apart from an offset and what spin-up's convergence test changes.
-    // Run from the case's own folder (the output folder may not exist yet): the same text with
-    // the paths as the original has them.
-    std::string base = std::filesystem::path(c.file).parent_path().string();
-    if (base.empty()) base = ".";
-    const CalibratedCase here =
-        calibrated_case(c, read_text_file(c.file, c.file), fit, label, base);
-    const CaseSpec cc = parse_case(
-        here.text, (std::filesystem::path(base) / in.calibrated_case_name).string(), base);
-    const RunResult rc = run_case(cc, read_case_met(cc));
-    const std::vector<double> rerun = model_total(cc, rc, design.case_index);
-    double offset = fitted_scale(fit, "offset");
-    if (design.columns.empty() || design.columns.front().kind != FitColumn::Kind::offset)
-      offset = 0.0;
-    double worst = 0.0, scale = 0.0;
-    for (std::size_t i = 0; i < rerun.size(); ++i) {
-      worst = std::max(worst, std::fabs(rerun[i] + offset - fitted[i]));
-      scale = std::max(scale, std::fabs(fitted[i]));
-    }
-    in.calibrated_notes.push_back(
-        "the calibrated case, run again, reproduces the fitted hour means to " +
-        format_number(scale > 0 ? worst / scale : worst, 2) + " of their peak" +
-        (offset != 0.0 ? " (with the offset added)" : ""));
-    in.fit = std::move(fit);
-    files.push_back({in.calibrated_case_name, cal.text});
-  }
+  if (!a.fit.empty()) fit_and_calibrate(c, r, rules, a, dir, design, in, files);
   auto rendered = render_evaluation_outputs(in);
   files.insert(files.begin(), rendered.begin(), rendered.end());
   const auto written = write_output_files(dir, files);

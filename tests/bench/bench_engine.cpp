@@ -122,6 +122,55 @@ Timing time_engine(const CaseSpec& c, const Forcing& F, int repeats, double& che
   return summarise(times);
 }
 
+// The held case for scipy (forcing in SI, one line per hour) and lidbox's own hour means of
+// the total beside it, for the comparison in scipy_year.py.
+void write_scipy_case(const CaseSpec& c, const Forcing& held, const std::string& path,
+                      const std::string& lidbox_path) {
+  const std::size_t n = held.n_hours;
+  {
+    std::ofstream f(path);
+    f.precision(17);
+    f << c.footprint.x_side_m << ' ' << c.footprint.y_side_m << ' ' << c.footprint.x_side_bearing_deg << ' '
+      << c.engine.min_wind_m_s << ' ' << c.engine.min_mixing_height_m << ' ' << c.pollutants.size() << ' '
+      << n << '\n';
+    for (const auto& p : c.pollutants) {
+      f << p.processes.loss_rate_per_s << ' ' << p.processes.deposition_velocity_m_s << ' '
+        << p.processes.residual_loss_rate_per_s << '\n';
+    }
+    const std::size_t P = c.pollutants.size();
+    for (std::size_t i = 0; i < n; ++i) {
+      f << held.mixing_height_m[i] << ' ' << held.wind_u_m_s[i] << ' ' << held.wind_v_m_s[i];
+      for (std::size_t p = 0; p < P; ++p) {
+        double q = 0.0;
+        for (std::size_t s = 0; s < held.n_sectors; ++s) {
+          q += held.emission_g_s[s * P + p] * held.clock_factor[(s * n + i) * 2];
+        }
+        f << ' ' << held.background_g_m3[p * n + i] << ' ' << held.free_troposphere_g_m3[p * n + i] << ' '
+          << q / c.footprint.area_m2();
+      }
+      f << '\n';
+    }
+  }
+  // lidbox's own hour means of the total for the comparison.
+  {
+    std::vector<PollutantProcesses> pr;
+    for (const auto& p : c.pollutants) pr.push_back(p.processes);
+    BoxEngine engine(c.footprint, pr, held.n_sectors, c.engine);
+    HourResult r = engine.make_result();
+    BoxState s = engine.make_state(held.mixing_height_m[0]);
+    std::ofstream f(lidbox_path);
+    f.precision(17);
+    for (std::size_t i = 0; i < n; ++i) {
+      engine.step_hour(s, held, i, r);
+      for (std::size_t p = 0; p < c.pollutants.size(); ++p) {
+        double t = 0.0;
+        for (std::size_t j = 0; j < engine.parts(); ++j) t += r.mean_c_g_m3[p * engine.parts() + j];
+        f << t << (p + 1 < c.pollutants.size() ? ' ' : '\n');
+      }
+    }
+  }
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -156,51 +205,9 @@ int main(int argc, char** argv) {
       inst_t.median_s * 1e3, inst_t.min_s * 1e3, sub_inst,
       static_cast<double>(sub_inst) / static_cast<double>(n));
 
-  // The same held case for scipy: forcing in SI, one line per hour.
   c.engine.reading = c.met.reading = MetReading::hour_average;
   const std::string path = "bench_engine_forcing.txt";
-  {
-    std::ofstream f(path);
-    f.precision(17);
-    f << c.footprint.x_side_m << ' ' << c.footprint.y_side_m << ' ' << c.footprint.x_side_bearing_deg << ' '
-      << c.engine.min_wind_m_s << ' ' << c.engine.min_mixing_height_m << ' ' << c.pollutants.size() << ' '
-      << n << '\n';
-    for (const auto& p : c.pollutants) {
-      f << p.processes.loss_rate_per_s << ' ' << p.processes.deposition_velocity_m_s << ' '
-        << p.processes.residual_loss_rate_per_s << '\n';
-    }
-    const std::size_t P = c.pollutants.size();
-    for (std::size_t i = 0; i < n; ++i) {
-      f << held.mixing_height_m[i] << ' ' << held.wind_u_m_s[i] << ' ' << held.wind_v_m_s[i];
-      for (std::size_t p = 0; p < P; ++p) {
-        double q = 0.0;
-        for (std::size_t s = 0; s < held.n_sectors; ++s) {
-          q += held.emission_g_s[s * P + p] * held.clock_factor[(s * n + i) * 2];
-        }
-        f << ' ' << held.background_g_m3[p * n + i] << ' ' << held.free_troposphere_g_m3[p * n + i] << ' '
-          << q / c.footprint.area_m2();
-      }
-      f << '\n';
-    }
-  }
-  // lidbox's own hour means of the total for the comparison.
-  {
-    std::vector<PollutantProcesses> pr;
-    for (const auto& p : c.pollutants) pr.push_back(p.processes);
-    BoxEngine engine(c.footprint, pr, held.n_sectors, c.engine);
-    HourResult r = engine.make_result();
-    BoxState s = engine.make_state(held.mixing_height_m[0]);
-    std::ofstream f("bench_engine_lidbox.txt");
-    f.precision(17);
-    for (std::size_t i = 0; i < n; ++i) {
-      engine.step_hour(s, held, i, r);
-      for (std::size_t p = 0; p < c.pollutants.size(); ++p) {
-        double t = 0.0;
-        for (std::size_t j = 0; j < engine.parts(); ++j) t += r.mean_c_g_m3[p * engine.parts() + j];
-        f << t << (p + 1 < c.pollutants.size() ? ' ' : '\n');
-      }
-    }
-  }
+  write_scipy_case(c, held, path, "bench_engine_lidbox.txt");
   const std::string cmd = python + " " + source + "/tests/bench/scipy_year.py " + path + " bench_engine_lidbox.txt";
   FILE* pipe = popen(cmd.c_str(), "r");
   double t_scipy = 0.0, worst = 0.0;

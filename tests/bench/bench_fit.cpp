@@ -14,8 +14,11 @@
 
 using namespace lidbox;
 
-int main(int argc, char** argv) {
-  const std::size_t T = 8760, monitors = 3, sectors = 5;
+namespace {
+
+// An invented fit: a background and five sectors with random hour-of-day and day-of-week
+// clocks, seen by three monitors with Gaussian noise around known scales.
+FitDesign invented_design(std::size_t T, std::size_t monitors, std::size_t sectors) {
   std::mt19937_64 rng(20261202);
   std::uniform_real_distribution<double> u(0.0, 1.0);
   std::normal_distribution<double> noise(0.0, 1.0);
@@ -63,6 +66,15 @@ int main(int argc, char** argv) {
       d.row_hour.push_back(i);
     }
   }
+  return d;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  const std::size_t T = 8760, monitors = 3, sectors = 5;
+  const FitDesign d = invented_design(T, monitors, sectors);
+  const std::size_t p = d.columns.size();
   using clock = std::chrono::steady_clock;
   SectorFitOptions o;
   double best_fit = 1e9;

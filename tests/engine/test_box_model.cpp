@@ -299,6 +299,41 @@ Scenario random_scenario(std::mt19937_64& rng, MetReading reading) {
   return sc;
 }
 
+// Hour means of the merged-sector twin of a scenario: per pollutant, one engine with one sector
+// whose clock is the sum of the sectors' rates times their clocks (linearity, physics note
+// section 6). Indexed [p * hours + i].
+std::vector<double> merged_sector_totals(const Scenario& sc) {
+  const Forcing& F = sc.F;
+  std::vector<double> merged_total(F.n_pollutants * F.n_hours, 0.0);
+  for (std::size_t p = 0; p < F.n_pollutants; ++p) {
+    Forcing Mp = F;
+    Mp.n_pollutants = 1;
+    Mp.background_g_m3.assign(F.background_g_m3.begin() + static_cast<long>(p * F.n_hours),
+                              F.background_g_m3.begin() + static_cast<long>((p + 1) * F.n_hours));
+    Mp.free_troposphere_g_m3.assign(F.free_troposphere_g_m3.begin() + static_cast<long>(p * F.n_hours),
+                                    F.free_troposphere_g_m3.begin() + static_cast<long>((p + 1) * F.n_hours));
+    Mp.n_sectors = F.n_sectors > 0 ? 1 : 0;
+    Mp.emission_g_s.assign(Mp.n_sectors, 1.0);
+    Mp.clock_factor.assign(Mp.n_sectors * F.n_hours * 2, 0.0);
+    for (std::size_t sec = 0; sec < F.n_sectors; ++sec) {
+      for (std::size_t i = 0; i < F.n_hours * 2; ++i) {
+        Mp.clock_factor[i] += F.emission(sec, p) * F.clock_factor[sec * F.n_hours * 2 + i];
+      }
+    }
+    BoxEngine ep(sc.fp, {sc.pollutants[p]}, Mp.n_sectors, sc.opt);
+    BoxState sp = ep.make_state(F.mixing_height_m[0]);
+    sp.c_g_m3[1] = 30e-6;
+    HourResult rp = ep.make_result();
+    for (std::size_t i = 0; i < F.n_hours; ++i) {
+      ep.step_hour(sp, Mp, i, rp);
+      double t = 0.0;
+      for (std::size_t j = 0; j < ep.parts(); ++j) t += rp.mean_c_g_m3[j];
+      merged_total[p * F.n_hours + i] = t;
+    }
+  }
+  return merged_total;
+}
+
 }  // namespace
 
 TEST_CASE("random scenarios: budgets close, concentrations stay non-negative, parts add up") {
@@ -319,42 +354,7 @@ TEST_CASE("random scenarios: budgets close, concentrations stay non-negative, pa
     BoxState s = engine.make_state(F.mixing_height_m[0]);
     for (std::size_t k = 0; k < s.c_g_m3.size(); ++k) s.c_g_m3[k] = (k % engine.parts() == 1) ? 30e-6 : 0.0;
 
-    // Merged-sector twin.
-    Forcing M = F;
-    M.n_sectors = F.n_sectors > 0 ? 1 : 0;
-    if (F.n_sectors > 0) {
-      M.emission_g_s.assign(F.n_pollutants, 0.0);
-      M.clock_factor.assign(F.n_hours * 2, 0.0);
-    }
-    // A merged sector with unit rates per pollutant needs per-pollutant clocks; do it per
-    // pollutant by giving each pollutant its own merged engine.
-    std::vector<double> merged_total(F.n_pollutants * F.n_hours, 0.0);
-    for (std::size_t p = 0; p < F.n_pollutants; ++p) {
-      Forcing Mp = F;
-      Mp.n_pollutants = 1;
-      Mp.background_g_m3.assign(F.background_g_m3.begin() + static_cast<long>(p * F.n_hours),
-                                F.background_g_m3.begin() + static_cast<long>((p + 1) * F.n_hours));
-      Mp.free_troposphere_g_m3.assign(F.free_troposphere_g_m3.begin() + static_cast<long>(p * F.n_hours),
-                                      F.free_troposphere_g_m3.begin() + static_cast<long>((p + 1) * F.n_hours));
-      Mp.n_sectors = F.n_sectors > 0 ? 1 : 0;
-      Mp.emission_g_s.assign(Mp.n_sectors, 1.0);
-      Mp.clock_factor.assign(Mp.n_sectors * F.n_hours * 2, 0.0);
-      for (std::size_t sec = 0; sec < F.n_sectors; ++sec) {
-        for (std::size_t i = 0; i < F.n_hours * 2; ++i) {
-          Mp.clock_factor[i] += F.emission(sec, p) * F.clock_factor[sec * F.n_hours * 2 + i];
-        }
-      }
-      BoxEngine ep(sc.fp, {sc.pollutants[p]}, Mp.n_sectors, sc.opt);
-      BoxState sp = ep.make_state(F.mixing_height_m[0]);
-      sp.c_g_m3[1] = 30e-6;
-      HourResult rp = ep.make_result();
-      for (std::size_t i = 0; i < F.n_hours; ++i) {
-        ep.step_hour(sp, Mp, i, rp);
-        double t = 0.0;
-        for (std::size_t j = 0; j < ep.parts(); ++j) t += rp.mean_c_g_m3[j];
-        merged_total[p * F.n_hours + i] = t;
-      }
-    }
+    const std::vector<double> merged_total = merged_sector_totals(sc);
 
     std::vector<double> m0(F.n_pollutants), r0(F.n_pollutants);
     for (std::size_t p = 0; p < F.n_pollutants; ++p) {
