@@ -4,6 +4,7 @@
 #include <cmath>
 #include <sstream>
 
+#include "lidbox/base/error.hpp"
 #include "lidbox/base/text.hpp"
 #include "lidbox/standards/pollutant.hpp"
 
@@ -42,6 +43,13 @@ std::optional<StandardsReport> run_standards(const CaseSpec& c, const RunResult&
   opt.aqi_table = parse_aqi_table(st.aqi_table, c.file + ": [standards] aqi_table");
   opt.with_aqi = st.aqi;
   opt.with_aqhi = st.aqhi;
+  if (!st.index.empty()) {
+    try {
+      opt.index = load_air_index(st.index);
+    } catch (const InputError& e) {
+      throw e.within(st.index_where);
+    }
+  }
   for (const auto& [k, m] : st.rolling_h)
     opt.rolling.push_back({k, m > 0 ? m : min_valid_count(k)});
   opt.input_label = "model run " + c.file + " (case " + c.name + ", hour means of the mixed layer)";

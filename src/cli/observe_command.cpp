@@ -22,6 +22,7 @@ struct ObserveArgs {
   std::string lst_offset;
   std::string issue_time;
   std::string aqi_table = "2024";
+  std::string index;
   std::string out_dir = "outputs";
   std::string prefix;
   std::vector<std::string> rolling;
@@ -75,6 +76,7 @@ void run(const ObserveArgs& a) {
   opt.aqi_table = parse_aqi_table(a.aqi_table, "--aqi-table");
   opt.with_aqi = !a.no_aqi;
   opt.with_aqhi = !a.no_aqhi;
+  if (!a.index.empty()) opt.index = load_air_index(a.index);
   for (const auto& r : a.rolling) opt.rolling.push_back(parse_rolling(r));
   const auto dir = rules_directory(
       a.rules_dir.empty() ? std::nullopt : std::optional<std::filesystem::path>(a.rules_dir));
@@ -121,6 +123,9 @@ void add_observe_command(CLI::App& app, int& exit_code) {
                   "forecast issue time (ISO 8601 with offset) for episode lead times");
   sub->add_option("--aqi-table", args->aqi_table, "US AQI breakpoints: 2024 or 2018")
       ->capture_default_str();
+  sub->add_option("--index", args->index,
+                  "the index people read: an id of the shipped indices (us-aqi-2024, us-aqi-2018, "
+                  "eu-eaqi-2017, ca-aqhi) or the path of an index TOML file");
   sub->add_option("--out", args->out_dir, "output folder")->capture_default_str();
   sub->add_option("--prefix", args->prefix, "file-name prefix (default: <observations stem>_)");
   sub->add_option("--rolling", args->rolling,

@@ -527,7 +527,8 @@ std::vector<std::pair<int, int>> read_rolling(const TomlTable& r) {
 
 void read_standards(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
   const auto r = top.optional_table(
-      "standards", {"rule_sets", "rules_dir", "aqi_table", "aqi", "aqhi", "issue_time", "rolling"});
+      "standards", {"rule_sets", "rules_dir", "aqi_table", "aqi", "aqhi", "index", "issue_time",
+                    "rolling"});
   if (!r) return;
   const std::string sets_expected =
       "rule_sets = [\"us-naaqs\", \"eu-2008-50\"] (ids of src/data/rules or paths of TOML files)";
@@ -547,6 +548,13 @@ void read_standards(const TomlTable& top, const std::string& base_dir, CaseSpec&
   s.aqi_table = r->optional_string("aqi_table").value_or("2024");
   s.aqi = r->optional_bool("aqi").value_or(true);
   s.aqhi = r->optional_bool("aqhi").value_or(true);
+  if (auto ix = r->optional_string("index")) {
+    const std::filesystem::path p(*ix);
+    s.index = p.extension() == ".toml" && p.is_relative()
+                  ? (std::filesystem::path(base_dir) / p).string()
+                  : *ix;
+    s.index_where = r->where("index");
+  }
   if (auto t = r->optional_string("issue_time"))
     s.issue_time_utc = parse_iso8601(*t, &c.zone, r->where("issue_time"));
   s.rolling_h = read_rolling(*r);

@@ -84,11 +84,11 @@ std::string aqi_csv(const StandardsReport& r) {
   std::ostringstream o;
   o << "date_lst,input,concentration,unit,sub_index,beyond_the_aqi,day_aqi,day_category,"
        "responsible,table\n";
-  const std::string table = csv(aqi_table_name(r.options.aqi_table));
+  const std::string table = csv(aqi_index_of(r.options).version);
   for (const auto& d : r.aqi) {
     for (const auto& s : d.sub_indices) {
-      o << format_day(d.day) << ',' << to_string(s.input) << ',' << num(s.concentration) << ','
-        << aqi_input_unit(s.input) << ',' << s.aqi << ',' << (s.beyond_the_aqi ? "true" : "false")
+      o << format_day(d.day) << ',' << csv(s.input) << ',' << num(s.concentration) << ','
+        << csv(s.unit) << ',' << s.aqi << ',' << (s.beyond_the_aqi ? "true" : "false")
         << ',' << d.aqi << ',' << csv(d.category) << ',' << d.responsible << ',' << table << '\n';
     }
   }
@@ -102,6 +102,28 @@ std::string aqhi_csv(const StandardsReport& r) {
   for (const auto& h : r.aqhi) {
     o << format_utc(h.end_utc) << ',' << num(h.no2_ppb) << ',' << num(h.o3_ppb) << ','
       << num(h.pm25_ug_m3) << ',' << num(h.value) << ',' << h.rounded << ',' << h.category << '\n';
+  }
+  return o.str();
+}
+
+// The chosen bands index hour by hour: the level and category of the hour, the input that set
+// it, then each input's value and level.
+std::string banded_csv(const StandardsReport& r) {
+  const AirIndex& ix = *r.options.index;
+  std::ostringstream o;
+  o << "hour_start_utc,level,category,responsible";
+  for (const auto& s : ix.scales) o << ',' << csv(s.name + " [" + s.unit + "]") << ',' << csv(s.name + " level");
+  o << ",index\n";
+  for (const auto& h : r.banded) {
+    o << format_utc(h.hour_start_utc) << ',' << h.level << ',' << csv(h.category) << ','
+      << csv(h.responsible);
+    for (const auto& s : ix.scales) {
+      const auto it = std::find_if(h.inputs.begin(), h.inputs.end(),
+                                   [&](const BandedInput& b) { return b.scale == s.name; });
+      if (it == h.inputs.end()) o << ",,";
+      else o << ',' << num(it->concentration) << ',' << it->level;
+    }
+    o << ',' << csv(ix.id) << '\n';
   }
   return o.str();
 }
@@ -179,6 +201,7 @@ std::vector<std::string> base_table_names(const StandardsReport& r) {
   std::vector<std::string> names = {"limits.csv", "daily.csv", "periods.csv", "episodes.csv"};
   if (r.options.with_aqi) names.emplace_back("aqi.csv");
   if (r.options.with_aqhi) names.emplace_back("aqhi.csv");
+  if (r.options.index && r.options.index->kind == IndexKind::bands) names.emplace_back("index.csv");
   for (const auto& q : r.options.rolling) {
     const std::string n = "rolling_" + q.name() + ".csv";
     if (std::find(names.begin(), names.end(), n) == names.end()) names.push_back(n);
@@ -261,7 +284,7 @@ void json_episodes(std::ostringstream& o, const StandardsReport& r) {
 
 void json_aqi(std::ostringstream& o, const StandardsReport& r) {
   const auto& opt = r.options;
-  o << "  \"aqi\": {\"table\": " << js(aqi_table_name(opt.aqi_table)) << ", \"days\": [";
+  o << "  \"aqi\": {\"table\": " << js(aqi_index_of(opt).version) << ", \"days\": [";
   for (std::size_t i = 0; i < r.aqi.size(); ++i) {
     const auto& d = r.aqi[i];
     o << (i ? ",\n" : "\n") << "    {\"date_lst\": " << js(format_day(d.day))
@@ -438,14 +461,16 @@ void md_episodes(std::ostringstream& o, const StandardsReport& r) {
 
 void md_aqi(std::ostringstream& o, const StandardsReport& r) {
   const auto& opt = r.options;
-  o << "\n## US Air Quality Index (breakpoints: " << aqi_table_name(opt.aqi_table) << ")\n\n";
+  const AirIndex& ix = aqi_index_of(opt);
+  o << "\n## " << ix.name << " (breakpoints: " << ix.version << ")\n\n";
   if (r.aqi.empty()) {
     o << "No day with a complete AQI input.\n";
   } else {
     std::map<int, std::pair<std::string, int>> by_rank;
     const DailyAqi* worst = &r.aqi.front();
     for (const auto& d : r.aqi) {
-      const int rank = d.category == "Beyond the AQI" ? 501 : d.aqi <= 50 ? 0 : (d.aqi - 1) / 50;
+      const IndexCategory* cat = ix.category_of(d.aqi);
+      const int rank = d.category == ix.beyond_name || !cat ? kOpenTop : cat->index_lo;
       auto& slot = by_rank[rank];
       slot.first = d.category;
       ++slot.second;
@@ -456,6 +481,26 @@ void md_aqi(std::ostringstream& o, const StandardsReport& r) {
     o << "\nHighest: AQI " << worst->aqi << " (" << worst->category << ") on "
       << format_day(worst->day) << ", responsible pollutant " << worst->responsible << ".\n";
   }
+}
+
+void md_banded(std::ostringstream& o, const StandardsReport& r) {
+  const AirIndex& ix = *r.options.index;
+  o << "\n## " << ix.name << " (hourly; " << ix.version << ")\n\n";
+  if (r.banded.empty()) {
+    o << "No hour with an input of this index.\n";
+    return;
+  }
+  std::vector<int> hours(ix.categories.size(), 0);
+  const BandedHour* worst = &r.banded.front();
+  for (const auto& h : r.banded) {
+    ++hours[static_cast<std::size_t>(h.level - 1)];
+    if (h.level > worst->level) worst = &h;
+  }
+  o << "| Level | Category | Hours |\n|---:|---|---:|\n";
+  for (std::size_t k = 0; k < hours.size(); ++k)
+    o << "| " << k + 1 << " | " << md(ix.categories[k].name) << " | " << hours[k] << " |\n";
+  o << "\nPoorest: " << worst->category << " from " << format_utc(worst->hour_start_utc)
+    << " (first such hour), set by " << worst->responsible << ". Hour by hour: index.csv.\n";
 }
 
 void md_aqhi(std::ostringstream& o, const StandardsReport& r) {
@@ -480,6 +525,8 @@ std::string report_markdown(const StandardsReport& r) {
   md_episodes(o, r);
   if (r.options.with_aqi) md_aqi(o, r);
   if (r.options.with_aqhi) md_aqhi(o, r);
+  if (!r.banded.empty() || (r.options.index && r.options.index->kind == IndexKind::bands))
+    md_banded(o, r);
   o << "\n## How to read this\n\n"
        "- \"exceeded\": the statistic computed here from the series given is above the level "
        "(or the count above the allowed number); \"within\": not above, on a complete year; "
@@ -501,6 +548,8 @@ std::vector<OutputFile> render_standards_report(const StandardsReport& r) {
   files.push_back({"episodes.csv", episodes_csv(r)});
   if (r.options.with_aqi) files.push_back({"aqi.csv", aqi_csv(r)});
   if (r.options.with_aqhi) files.push_back({"aqhi.csv", aqhi_csv(r)});
+  if (r.options.index && r.options.index->kind == IndexKind::bands)
+    files.push_back({"index.csv", banded_csv(r)});
   for (const auto& q : r.options.rolling) {
     const std::string name = "rolling_" + q.name() + ".csv";
     const bool seen = std::any_of(files.begin(), files.end(),

@@ -5,12 +5,15 @@
 
 #include "lidbox/base/error.hpp"
 #include "lidbox/standards/averaging.hpp"
+#include "lidbox/standards/rule_set.hpp"
 
 namespace lidbox {
 
-const char* aqi_table_name(AqiTable t) {
-  return t == AqiTable::epa_2024 ? "EPA-454/B-24-002 (May 2024)" : "EPA-454/B-18-007 (Sept 2018)";
+const AirIndex& aqi_table_index(AqiTable t) {
+  return shipped_air_index(t == AqiTable::epa_2024 ? "us-aqi-2024" : "us-aqi-2018");
 }
+
+const char* aqi_table_name(AqiTable t) { return aqi_table_index(t).version.c_str(); }
 
 AqiTable parse_aqi_table(std::string_view text, std::string_view where) {
   if (text == "2024") return AqiTable::epa_2024;
@@ -58,93 +61,58 @@ const char* aqi_input_unit(AqiInput p) {
   return "?";
 }
 
+std::vector<AqiBreakpoint> aqi_breakpoints(AqiInput p, AqiTable t) {
+  std::vector<AqiBreakpoint> out;
+  if (const IndexScale* s = aqi_table_index(t).scale(to_string(p))) {
+    for (const IndexRow& r : s->rows) out.push_back({r.c_lo, r.c_hi, r.i_lo, r.i_hi});
+  }
+  return out;
+}
+
 namespace {
 
-int truncation_decimals(AqiInput p) {
-  switch (p) {
-    case AqiInput::o3_8h:
-    case AqiInput::o3_1h:
-      return 3;
-    case AqiInput::pm25_24h:
-    case AqiInput::co_8h:
-      return 1;
-    default:
-      return 0;
-  }
+double truncated(const IndexScale& s, double c) {
+  if (s.truncate_decimals == -99) return c;
+  return apply_rounding(c, {RoundingMode::truncate, s.truncate_decimals});
 }
 
 }  // namespace
 
-std::vector<AqiBreakpoint> aqi_breakpoints(AqiInput p, AqiTable t) {
-  switch (p) {
-    case AqiInput::o3_8h:
-      return {{0.000, 0.054, 0, 50},
-              {0.055, 0.070, 51, 100},
-              {0.071, 0.085, 101, 150},
-              {0.086, 0.105, 151, 200},
-              {0.106, 0.200, 201, 300}};
-    case AqiInput::o3_1h:
-      return {{0.125, 0.164, 101, 150},
-              {0.165, 0.204, 151, 200},
-              {0.205, 0.404, 201, 300},
-              {0.405, 0.504, 301, 400},
-              {0.505, 0.604, 401, 500}};
-    case AqiInput::pm25_24h:
-      if (t == AqiTable::epa_2024) {
-        return {{0.0, 9.0, 0, 50},       {9.1, 35.4, 51, 100},     {35.5, 55.4, 101, 150},
-                {55.5, 125.4, 151, 200}, {125.5, 225.4, 201, 300}, {225.5, 325.4, 301, 500}};
-      }
-      return {{0.0, 12.0, 0, 50},      {12.1, 35.4, 51, 100},    {35.5, 55.4, 101, 150},
-              {55.5, 150.4, 151, 200}, {150.5, 250.4, 201, 300}, {250.5, 350.4, 301, 400},
-              {350.5, 500.4, 401, 500}};
-    case AqiInput::pm10_24h:
-      return {{0, 54, 0, 50},       {55, 154, 51, 100},   {155, 254, 101, 150},
-              {255, 354, 151, 200}, {355, 424, 201, 300}, {425, 504, 301, 400},
-              {505, 604, 401, 500}};
-    case AqiInput::co_8h:
-      return {{0.0, 4.4, 0, 50},      {4.5, 9.4, 51, 100},    {9.5, 12.4, 101, 150},
-              {12.5, 15.4, 151, 200}, {15.5, 30.4, 201, 300}, {30.5, 40.4, 301, 400},
-              {40.5, 50.4, 401, 500}};
-    case AqiInput::so2_1h:
-      return {{0, 35, 0, 50}, {36, 75, 51, 100}, {76, 185, 101, 150}, {186, 304, 151, 200}};
-    case AqiInput::so2_24h:
-      return {{305, 604, 201, 300}, {605, 804, 301, 400}, {805, 1004, 401, 500}};
-    case AqiInput::no2_1h:
-      return {{0, 53, 0, 50},        {54, 100, 51, 100},    {101, 360, 101, 150},
-              {361, 649, 151, 200},  {650, 1249, 201, 300}, {1250, 1649, 301, 400},
-              {1650, 2049, 401, 500}};
-  }
-  return {};
-}
-
-std::optional<SubIndex> aqi_sub_index(AqiInput p, double concentration, AqiTable t) {
-  if (std::isnan(concentration) || concentration < 0.0) return std::nullopt;
-  const double c = apply_rounding(concentration, {RoundingMode::truncate, truncation_decimals(p)});
-  const auto rows = aqi_breakpoints(p, t);
-  auto interpolate = [c](const AqiBreakpoint& r) {
-    const double i = (r.i_hi - r.i_lo) / (r.bp_hi - r.bp_lo) * (c - r.bp_lo) + r.i_lo;
+std::optional<SubIndex> index_sub_index(const IndexScale& scale, double concentration) {
+  if (std::isnan(concentration) || concentration < 0.0 || scale.rows.empty()) return std::nullopt;
+  const double c = truncated(scale, concentration);
+  auto interpolate = [c](const IndexRow& r) {
+    const double i = (r.i_hi - r.i_lo) / (r.c_hi - r.c_lo) * (c - r.c_lo) + r.i_lo;
     return static_cast<int>(apply_rounding(i, {RoundingMode::round_half_up, 0}));
   };
   // Tolerance for comparing decimal breakpoints with truncated values (both hold the same
   // decimal digit, stored in binary).
   constexpr double eps = 1e-9;
-  for (const AqiBreakpoint& r : rows) {
-    if (c >= r.bp_lo - eps && c <= r.bp_hi + eps) return SubIndex{p, c, interpolate(r), false};
+  for (const IndexRow& r : scale.rows) {
+    if (c >= r.c_lo - eps && c <= r.c_hi + eps)
+      return SubIndex{scale.name, scale.unit, c, interpolate(r), false, false};
   }
-  if (rows.empty() || c < rows.front().bp_lo) return std::nullopt;
+  if (c < scale.rows.front().c_lo) return std::nullopt;
   // Above the top row: 8-h O3 and 1-h SO2 hand over to another averaging time.
-  if (p == AqiInput::o3_8h || p == AqiInput::so2_1h) return std::nullopt;
-  return SubIndex{p, c, interpolate(rows.back()), true};
+  if (scale.above_top != AboveTop::extrapolate) return std::nullopt;
+  return SubIndex{scale.name, scale.unit, c, interpolate(scale.rows.back()), true, false};
+}
+
+std::optional<SubIndex> aqi_sub_index(AqiInput p, double concentration, AqiTable t) {
+  const IndexScale* s = aqi_table_index(t).scale(to_string(p));
+  if (!s) return std::nullopt;
+  return index_sub_index(*s, concentration);
+}
+
+std::string aqi_category(int aqi, const AirIndex& index) {
+  if (const IndexCategory* c = index.category_of(aqi)) return c->name;
+  return aqi > 0 ? index.beyond_name : "";
 }
 
 const char* aqi_category(int aqi) {
-  if (aqi <= 50) return "Good";
-  if (aqi <= 100) return "Moderate";
-  if (aqi <= 150) return "Unhealthy for Sensitive Groups";
-  if (aqi <= 200) return "Unhealthy";
-  if (aqi <= 300) return "Very Unhealthy";
-  if (aqi <= 500) return "Hazardous";
-  return "Beyond the AQI";
+  const AirIndex& ix = aqi_table_index(AqiTable::epa_2024);
+  if (const IndexCategory* c = ix.category_of(aqi)) return c->name.c_str();
+  return ix.beyond_name.c_str();
 }
 
 namespace {
@@ -152,65 +120,53 @@ namespace {
 // The conservative reading of the 1-h SO2 footnote for a 1-h value above the 1-h scale (see
 // aqi.hpp): the sub-index is held at the top of the 1-h scale, AQI 200; the 24-h mean, added
 // separately, decides any higher value.
-std::optional<SubIndex> so2_1h_above_scale(double ppb, AqiTable table) {
-  const auto rows = aqi_breakpoints(AqiInput::so2_1h, table);
-  const double c =
-      apply_rounding(ppb, {RoundingMode::truncate, truncation_decimals(AqiInput::so2_1h)});
-  if (rows.empty() || std::isnan(c) || !(c > rows.back().bp_hi)) return std::nullopt;
-  SubIndex s{AqiInput::so2_1h, c, rows.back().i_hi, false};
-  s.held_at_scale_top = true;
-  return s;
+std::optional<SubIndex> held_above_scale(const IndexScale& s, double value) {
+  if (s.above_top != AboveTop::hold_at_top || s.rows.empty() || std::isnan(value))
+    return std::nullopt;
+  const double c = truncated(s, value);
+  if (!(c > s.rows.back().c_hi)) return std::nullopt;
+  return SubIndex{s.name, s.unit, c, s.rows.back().i_hi, false, true};
+}
+
+DailyValues daily_values(const HourlySeries& s, const IndexScale& sc, int off) {
+  switch (sc.statistic) {
+    case IndexStatistic::daily_max_8h_ozone:
+      return daily_max_of_windows(running_means(s, 8, 6, WindowSpan::reaching_into_series), off,
+                                  kUsOzoneDayWindows);
+    case IndexStatistic::daily_max_8h:
+      return daily_max_of_windows(running_means(s, 8, 6, WindowSpan::reaching_into_series), off,
+                                  {0, 24, 18});
+    case IndexStatistic::daily_max_1h:
+      return daily_max_1h(s, off);
+    case IndexStatistic::daily_mean:
+      return daily_means(s, off);
+    case IndexStatistic::hourly:
+    case IndexStatistic::running_mean:
+      break;
+  }
+  throw InternalError("daily_aqi: scale " + sc.name + " is not a daily statistic");
 }
 
 }  // namespace
 
-std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, AqiTable table) {
+std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, const AirIndex& index) {
   std::map<std::int64_t, DailyAqi> days;
-  auto add = [&](const DailyValues& dv, double factor, AqiInput input) {
+  for (const IndexScale& sc : index.scales) {
+    const auto it = series.find(sc.pollutant);
+    if (it == series.end() || it->second.size() == 0) continue;
+    const HourlySeries& s = it->second;
+    const double factor = unit_factor(s.unit, sc.unit, sc.pollutant, index.reference,
+                                      "AQI input " + sc.pollutant + " [" + s.unit + "]");
+    const DailyValues dv = daily_values(s, sc, lst_offset_s);
     for (std::size_t d = 0; d < dv.size(); ++d) {
       if (!dv.complete(d)) continue;
-      auto sub = aqi_sub_index(input, dv.value[d] * factor, table);
-      if (!sub && input == AqiInput::so2_1h) sub = so2_1h_above_scale(dv.value[d] * factor, table);
+      auto sub = index_sub_index(sc, dv.value[d] * factor);
+      if (!sub) sub = held_above_scale(sc, dv.value[d] * factor);
       if (!sub) continue;
       DailyAqi& day = days[dv.day(d)];
       day.day = dv.day(d);
       day.sub_indices.push_back(*sub);
     }
-  };
-  auto factor_for = [&](const char* pollutant, AqiInput input) {
-    const HourlySeries& s = series.at(pollutant);
-    return unit_factor(s.unit, aqi_input_unit(input), pollutant, kUsReferenceConditions,
-                       std::string("AQI input ") + pollutant + " [" + s.unit + "]");
-  };
-  auto has = [&](const char* p) { return series.count(p) && series.at(p).size() > 0; };
-  if (has("O3")) {
-    const HourlySeries& s = series.at("O3");
-    add(daily_max_of_windows(running_means(s, 8, 6, WindowSpan::reaching_into_series), lst_offset_s,
-                             kUsOzoneDayWindows),
-        factor_for("O3", AqiInput::o3_8h), AqiInput::o3_8h);
-    add(daily_max_1h(s, lst_offset_s), factor_for("O3", AqiInput::o3_1h), AqiInput::o3_1h);
-  }
-  if (has("PM2.5")) {
-    add(daily_means(series.at("PM2.5"), lst_offset_s), factor_for("PM2.5", AqiInput::pm25_24h),
-        AqiInput::pm25_24h);
-  }
-  if (has("PM10")) {
-    add(daily_means(series.at("PM10"), lst_offset_s), factor_for("PM10", AqiInput::pm10_24h),
-        AqiInput::pm10_24h);
-  }
-  if (has("CO")) {
-    add(daily_max_of_windows(running_means(series.at("CO"), 8, 6, WindowSpan::reaching_into_series),
-                             lst_offset_s, {0, 24, 18}),
-        factor_for("CO", AqiInput::co_8h), AqiInput::co_8h);
-  }
-  if (has("SO2")) {
-    const HourlySeries& s = series.at("SO2");
-    add(daily_max_1h(s, lst_offset_s), factor_for("SO2", AqiInput::so2_1h), AqiInput::so2_1h);
-    add(daily_means(s, lst_offset_s), factor_for("SO2", AqiInput::so2_24h), AqiInput::so2_24h);
-  }
-  if (has("NO2")) {
-    add(daily_max_1h(series.at("NO2"), lst_offset_s), factor_for("NO2", AqiInput::no2_1h),
-        AqiInput::no2_1h);
   }
   std::vector<DailyAqi> out;
   for (auto& [day, d] : days) {
@@ -219,11 +175,15 @@ std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, Aqi
       if (s.aqi > best->aqi) best = &s;
     }
     d.aqi = best->aqi;
-    d.responsible = to_string(best->input);
-    d.category = best->beyond_the_aqi ? "Beyond the AQI" : aqi_category(d.aqi);
+    d.responsible = best->input;
+    d.category = best->beyond_the_aqi ? index.beyond_name : aqi_category(d.aqi, index);
     out.push_back(std::move(d));
   }
   return out;
+}
+
+std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, AqiTable table) {
+  return daily_aqi(series, lst_offset_s, aqi_table_index(table));
 }
 
 }  // namespace lidbox

@@ -41,6 +41,15 @@ RuleCoverage rule_coverage(const NamedSeries& series, const ReportOptions& optio
 
 }  // namespace
 
+const AirIndex& aqi_index_of(const ReportOptions& options) {
+  if (options.index && options.index->kind == IndexKind::breakpoints) return *options.index;
+  return aqi_table_index(options.aqi_table);
+}
+
+const AirIndex& headline_index_of(const ReportOptions& options) {
+  return options.index ? *options.index : aqi_table_index(options.aqi_table);
+}
+
 StandardsReport compute_standards_report(const NamedSeries& series, ReportOptions options) {
   StandardsReport r;
   r.coverage = rule_coverage(series, options);
@@ -64,8 +73,15 @@ StandardsReport compute_standards_report(const NamedSeries& series, ReportOption
       }
     }
   }
-  if (options.with_aqi) r.aqi = daily_aqi(series, off, options.aqi_table);
-  if (options.with_aqhi) r.aqhi = hourly_aqhi(series);
+  // A chosen index is always computed, whatever the flags say about the shipped ones.
+  const bool formula = options.index && options.index->kind == IndexKind::formula;
+  if (options.index && options.index->kind == IndexKind::breakpoints) options.with_aqi = true;
+  if (formula) options.with_aqhi = true;
+  if (options.with_aqi) r.aqi = daily_aqi(series, off, aqi_index_of(options));
+  if (options.with_aqhi)
+    r.aqhi = formula ? hourly_formula_index(series, *options.index) : hourly_aqhi(series);
+  if (options.index && options.index->kind == IndexKind::bands)
+    r.banded = hourly_banded_index(series, *options.index);
   std::vector<RollingRequest> unique;
   for (const RollingRequest& q : options.rolling) {
     if (std::find(unique.begin(), unique.end(), q) == unique.end()) unique.push_back(q);

@@ -185,7 +185,7 @@ TEST_CASE("a day with a 350 ppb SO2 hour and a low 24-hour mean is not Good") {
   CHECK(days[0].category == "Unhealthy");
   CHECK(days[0].responsible == "SO2 1-h");
   const auto held = std::find_if(days[0].sub_indices.begin(), days[0].sub_indices.end(),
-                                 [](const SubIndex& x) { return x.input == AqiInput::so2_1h; });
+                                 [](const SubIndex& x) { return x.input == "SO2 1-h"; });
   REQUIRE(held != days[0].sub_indices.end());
   CHECK(held->concentration == 350.0);
   CHECK(held->held_at_scale_top);

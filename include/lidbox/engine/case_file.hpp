@@ -77,6 +77,10 @@ struct StandardsSpec {
   std::string aqi_table = "2024";      // US AQI breakpoints: "2024" or "2018"
   bool aqi = true;
   bool aqhi = true;
+  // The index people read (headline, bulletin): an id of src/data/indices ("eu-eaqi-2017") or a
+  // TOML path resolved against the case; empty: the US AQI of aqi_table.
+  std::string index;
+  std::string index_where;  // "<case>:<line>: [standards] index", for messages
   std::optional<UtcSeconds> issue_time_utc;    // forecast issue time, for episode lead times
   std::vector<std::pair<int, int>> rolling_h;  // extra running-mean tables: (window, min valid;
                                                // 0 = the standards' 75 % default)

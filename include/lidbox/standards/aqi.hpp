@@ -7,7 +7,12 @@
 // C is truncated first (O3 to 0.001 ppm, PM2.5 to 0.1 ug/m3, PM10 to 1 ug/m3 [TAD]; CO to
 // 0.1 ppm, SO2 and NO2 to 1 ppb [from memory]) and I is rounded to the nearest integer.
 //
-// Two breakpoint tables, selectable, and named in every output that uses them:
+// The breakpoints, category names, colours and health messages are data: src/data/indices/
+// us-aqi-2024.toml and us-aqi-2018.toml (air_index.hpp); an agency's own breakpoints file works
+// the same way. The rules below stay in code: truncation, rounding, the averaging recipes and the
+// hand-over between averaging times (a scale's above_top).
+//
+// Two breakpoint tables are shipped, selectable, and named in every output that uses them:
 //   AqiTable::epa_2024 - EPA-454/B-24-002 (May 2024): PM2.5 rows 0.0-9.0 / 9.1-35.4 / 35.5-55.4 /
 //       55.5-125.4 / 125.5-225.4 / 225.5-325.4 (301-500, one row). Other pollutants as in 2018.
 //       The PM2.5 rows come from secondary copies (design/references.md 2.2, note c); whether
@@ -36,18 +41,21 @@
 #include <string>
 #include <vector>
 
+#include "lidbox/standards/air_index.hpp"
 #include "lidbox/standards/standards_evaluation.hpp"
 
 namespace lidbox {
 
 enum class AqiTable { epa_2024, epa_2018 };
-// "EPA-454/B-24-002 (May 2024)" / "EPA-454/B-18-007 (Sept 2018)"
+// "EPA-454/B-24-002 (May 2024)" / "EPA-454/B-18-007 (Sept 2018)": the version of the shipped file
 const char* aqi_table_name(AqiTable t);
 // "2024" / "2018"; InputError naming `where` for anything else.
 AqiTable parse_aqi_table(std::string_view text, std::string_view where);
+// The shipped index file of a table: us-aqi-2024 / us-aqi-2018.
+const AirIndex& aqi_table_index(AqiTable t);
 
 enum class AqiInput { o3_8h, o3_1h, pm25_24h, pm10_24h, co_8h, so2_1h, so2_24h, no2_1h };
-const char* to_string(AqiInput p);
+const char* to_string(AqiInput p);       // the scale name in the shipped files: "O3 8-h", ...
 const char* aqi_input_unit(AqiInput p);  // "ppm", "ug m-3" or "ppb"
 
 struct AqiBreakpoint {
@@ -58,21 +66,26 @@ struct AqiBreakpoint {
 std::vector<AqiBreakpoint> aqi_breakpoints(AqiInput p, AqiTable t);
 
 struct SubIndex {
-  AqiInput input = AqiInput::o3_8h;
-  double concentration = 0.0;  // after truncation, in aqi_input_unit()
+  std::string input;  // the scale's name, "PM2.5 24-h"
+  std::string unit;   // the scale's unit, canonical ("ug m-3")
+  double concentration = 0.0;  // after truncation, in `unit`
   int aqi = 0;
   bool beyond_the_aqi = false;  // above the top breakpoint: extrapolated on the top row
   // 1-h SO2 above 304 ppb: the sub-index is held at 200, the top of the 1-h scale (see above).
   bool held_at_scale_top = false;
 };
 
-// Sub-index of a concentration in aqi_input_unit(p). Empty when the table does not define it:
-// negative values, 1-h O3 below 0.125 ppm, 8-h O3 above 0.200 ppm, 1-h SO2 above 304 ppb,
-// 24-h SO2 below 305 ppb.
+// Sub-index of a concentration in the scale's unit. Empty when the scale does not define it:
+// negative values, below the first row (1-h O3 below 0.125 ppm, 24-h SO2 below 305 ppb), above
+// the top row of a scale whose above_top is "undefined" or "hold_at_top" (8-h O3 above 0.200
+// ppm, 1-h SO2 above 304 ppb).
+std::optional<SubIndex> index_sub_index(const IndexScale& scale, double concentration);
 std::optional<SubIndex> aqi_sub_index(AqiInput p, double concentration, AqiTable t);
 
+// The category name of an AQI value in `index` (its beyond_name above the top category).
+std::string aqi_category(int aqi, const AirIndex& index);
 // Good, Moderate, Unhealthy for Sensitive Groups, Unhealthy, Very Unhealthy, Hazardous, and
-// "Beyond the AQI" above 500 (EPA category names).
+// "Beyond the AQI" above 500 (EPA category names, from us-aqi-2024.toml).
 const char* aqi_category(int aqi);
 
 struct DailyAqi {
@@ -83,12 +96,14 @@ struct DailyAqi {
   std::vector<SubIndex> sub_indices;
 };
 
-// Daily AQI from named hourly series: O3 8-h = 17-window daily maximum and 1-h = daily maximum
-// (the higher sub-index is used, 74 FR 30469 footnote 1), PM2.5 and PM10 daily means, CO daily
-// maximum of the 24 8-h means starting in the day (common practice, no source), SO2 and NO2
-// daily maximum hours (a 1-h SO2 maximum above 304 ppb held at 200, see above); only complete
-// days (75 %) are used. Gases are converted at 25 degC and
-// 101.325 kPa. Days with no sub-index are left out.
+// Daily AQI from named hourly series, each scale of `index` by its statistic: O3 8-h = 17-window
+// daily maximum and 1-h = daily maximum (the higher sub-index is used, 74 FR 30469 footnote 1),
+// PM2.5 and PM10 daily means, CO daily maximum of the 24 8-h means starting in the day (common
+// practice, no source), SO2 and NO2 daily maximum hours (a scale whose above_top is
+// "hold_at_top" is held at its top index above its top row, see above); only complete days
+// (75 %) are used. Gases are converted under the index's reference conditions (25 degC and
+// 101.325 kPa for the US AQI). Days with no sub-index are left out.
+std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, const AirIndex& index);
 std::vector<DailyAqi> daily_aqi(const NamedSeries& series, int lst_offset_s, AqiTable table);
 
 }  // namespace lidbox

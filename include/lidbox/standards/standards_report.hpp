@@ -38,6 +38,9 @@ struct ReportOptions {
   AqiTable aqi_table = AqiTable::epa_2024;
   bool with_aqi = true;
   bool with_aqhi = true;
+  // The index the case chose (air_index.hpp): a breakpoints index replaces the US AQI table, a
+  // formula index the shipped AQHI, and a bands index adds an hourly table of its own.
+  std::optional<AirIndex> index;
   std::vector<RollingRequest> rolling;  // extra running-mean tables (a request given twice: once)
   // Names of the input's pollutants that match no pollutant identity (pollutant.hpp), e.g. a
   // case's "fine_dust": no rule can judge them, and the report says so.
@@ -83,10 +86,16 @@ struct StandardsReport {
   std::vector<PeriodRow> periods;
   std::vector<DailyAqi> aqi;
   std::vector<AqhiHour> aqhi;
+  std::vector<BandedHour> banded;  // the chosen bands index, hour by hour
   std::vector<Episode> episodes;
   std::vector<RollingTable> rolling;
   RuleCoverage coverage;
 };
+
+// The breakpoints index used for the daily AQI: the chosen one, else the US AQI of aqi_table.
+const AirIndex& aqi_index_of(const ReportOptions& options);
+// The index people read: the chosen one, else the US AQI of aqi_table.
+const AirIndex& headline_index_of(const ReportOptions& options);
 
 // Computes every table. InputError for series the rules cannot use (unit conversions).
 StandardsReport compute_standards_report(const NamedSeries& series, ReportOptions options);
