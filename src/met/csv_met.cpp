@@ -274,6 +274,18 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
                              format_utc(met.first_stamp_utc),
                          "times a whole number of hours apart");
       }
+      // The gap rule is applied here first, before a missing hour is allocated, so that a row
+      // in the year 9999 after one in 2026 is refused at once rather than after 70 million rows.
+      const long long missing = (t - previous) / kSecondsPerHour - 1;
+      if (missing > options.max_gap_hours) {
+        throw InputError(where(),
+                         "a gap of " + std::to_string(missing) + " hours (" +
+                             format_utc(previous + kSecondsPerHour) + " to " +
+                             format_utc(t - kSecondsPerHour) + ")",
+                         "gaps of at most " + std::to_string(options.max_gap_hours) +
+                             " hours (set [met] max_gap_hours to fill longer gaps, or split the "
+                             "run)");
+      }
       // Missing stamps become gaps for the fill rule.
       for (UtcSeconds g = previous + kSecondsPerHour; g < t; g += kSecondsPerHour) {
         met.mixing_height_m.push_back(nan);
