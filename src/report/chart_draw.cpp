@@ -181,9 +181,9 @@ void draw_levels(svg::Writer& w, const Panel& p, std::vector<Level> levels) {
   }
 }
 
-void draw_legend(svg::Writer& w, double y, const std::vector<LegendItem>& items) {
-  double x = kLeft;
+void draw_legend(svg::Writer& w, double y, const std::vector<LegendItem>& items, double x) {
   for (const auto& it : items) {
+    if (it.text.empty()) continue;
     const std::string& s = it.swatch;
     if (s == "none") {
       w.text(x, y, it.text, "font-size=\"11.5\" font-weight=\"bold\"");

@@ -78,7 +78,7 @@ struct LegendItem {
   std::string swatch;
   std::string text;
 };
-void draw_legend(svg::Writer& w, double y, const std::vector<LegendItem>& items);
+void draw_legend(svg::Writer& w, double y, const std::vector<LegendItem>& items, double x = kLeft);
 // Title, caution and the time axis's name; returns the y where the first panel may start.
 double draw_header(svg::Writer& w, std::string_view title, const TimeCanvas& t);
 // The highest finite value of the series given.
