@@ -98,7 +98,10 @@ std::vector<Level> levels_of(const RunChartInput& in, std::size_t p) {
   for (const auto& rs : in.standards->options.rule_sets) {
     for (const auto& l : rs.limits) {
       if (l.pollutant != info->name || !short_enough(l.statistic)) continue;
-      add(l.level, l.unit, rs.id + " " + l.id, rs, l.where, false);
+      // The panel names the pollutant: "PM2.5-24h-IT-3" is labelled "24h-IT-3".
+      const std::string prefix = info->name + std::string("-");
+      const std::string id = l.id.rfind(prefix, 0) == 0 ? l.id.substr(prefix.size()) : l.id;
+      add(l.level, l.unit, rs.id + " " + id, rs, l.where, false);
     }
     for (const auto& a : rs.alerts) {
       if (a.pollutant != info->name || !short_enough(a.statistic)) continue;
