@@ -218,6 +218,10 @@ std::string closest_name(std::string_view word, const std::vector<std::string>& 
   std::size_t best = limit + 1;
   std::string pick;
   for (const auto& c : candidates) {
+    // The distance is at least the difference in length: a long text (a whole CSV line taken
+    // for a zone name, found by fuzzing) costs nothing instead of a table per candidate.
+    const std::size_t gap = w.size() > c.size() ? w.size() - c.size() : c.size() - w.size();
+    if (gap >= best) continue;
     const std::size_t d = edit_distance(w, lower(c));
     if (d < best) {
       best = d;
