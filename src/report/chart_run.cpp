@@ -39,6 +39,21 @@ double hours_from_start(const RunResult& r, UtcSeconds t) {
   return static_cast<double>(t - r.hours.front().start_utc) / kSecondsPerHour;
 }
 
+// Hours whose wind was raised to the calm floor, as ticks on the panel's floor (hour by hour
+// only: a day's bin would hide which hours). Returns how many hours there were.
+std::size_t calm_floor_marks(svg::Writer& w, const TimeCanvas& t, const RunResult& r,
+                             const Panel& p) {
+  std::size_t n = 0;
+  for (std::size_t i = 0; i < r.hours.size(); ++i) {
+    if (!r.hours[i].calm_floor) continue;
+    ++n;
+    if (!t.hourly()) continue;
+    w.rect(t.x_of(static_cast<double>(i)), p.y + p.h - 5, t.x_of(1.0) - t.x_of(0.0), 5,
+           "fill=\"" + std::string(kPaletteLevel) + "\"");
+  }
+  return n;
+}
+
 void lid_and_wind_panel(svg::Writer& w, const TimeCanvas& t, const RunResult& r, double y) {
   const auto lid = t.stats([&](std::size_t i) { return r.hours[i].mixing_height_m; });
   const auto residual = t.stats([&](std::size_t i) { return r.hours[i].residual_top_m; });
@@ -65,6 +80,12 @@ void lid_and_wind_panel(svg::Writer& w, const TimeCanvas& t, const RunResult& r,
        t.hourly() ? "mixing height [m]" : "mixing height [m], mean and band to highest"},
       {"line:" + std::string(kPaletteResidual) + ":5,3", "residual-layer top [m]"},
       {"line:" + std::string(kPaletteWind) + ":", "wind speed [m/s], right axis"}};
+  const std::size_t calm = calm_floor_marks(w, t, r, p);
+  if (calm > 0) {
+    legend.push_back({"fill:" + std::string(kPaletteLevel),
+                      std::to_string(calm) + " h under the calm floor" +
+                          (t.hourly() ? "" : " (hourly.csv)")});
+  }
   draw_legend(w, y + 13, legend);
 }
 
