@@ -155,7 +155,8 @@ std::optional<Band> ensemble_band(const RunChartInput& in, const TimeCanvas& t, 
     b.median = t.stats([&](std::size_t i) { return e.value(i, p, k) / to; }).mean;
   }
   b.label = "ensemble p" + format_number(q.front(), 3) + "-p" + format_number(q.back(), 3) + " (" +
-            std::to_string(e.members()) + " members)";
+            std::to_string(e.members()) + " members" +
+            (t.hourly() ? ")" : "; bin mean of the lower, highest hour of the upper)");
   return b;
 }
 
