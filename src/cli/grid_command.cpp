@@ -11,9 +11,8 @@
 #include "lidbox/grid/grid_run.hpp"
 
 #ifdef LIDBOX_MPI
-// The C API only: Open MPI's deprecated C++ bindings do not compile clean under -Wextra.
-#define OMPI_SKIP_MPICXX 1
-#define MPICH_SKIP_MPICXX 1
+// The C API only: CMake defines OMPI_SKIP_MPICXX, since Open MPI's deprecated C++ bindings do not
+// compile clean under -Wextra.
 #include <mpi.h>
 #endif
 

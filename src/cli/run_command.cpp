@@ -11,6 +11,7 @@
 #include "lidbox/diagnostics/daily_diagnostics.hpp"
 #include "lidbox/engine/case_file.hpp"
 #include "lidbox/engine/run.hpp"
+#include "lidbox/report/chart.hpp"
 #include "lidbox/report/cut_report.hpp"
 #include "lidbox/report/diagnostics_report.hpp"
 #include "lidbox/report/ensemble_report.hpp"
@@ -67,6 +68,7 @@ void add_run_command(CLI::App& app, int& exit_code) {
       o.issue_time = parse_iso8601(opt->issue_time, &c.zone, "--issue-time");
     o.progress = [&progress](double f, const char* stage) { progress.update(f, stage); };
     o.after_run = [&progress] { progress.finish(); };
+    o.chart = !c.ensemble;  // drawn below with the ensemble's band
     RunWritten w = run_and_write(out, c, met, o);
     const DiagnosticsSetup diag =
         load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
@@ -81,6 +83,13 @@ void add_run_command(CLI::App& app, int& exit_code) {
       progress.finish();
       append_section(files, "summary.txt", render_ensemble_summary(c, *ens));
       for (auto& f : render_ensemble_outputs(c, *ens)) files.push_back(std::move(f));
+      RunChartInput chart;
+      chart.c = &c;
+      chart.r = &w.result;
+      chart.standards = w.standards ? &*w.standards : nullptr;
+      chart.ensemble = &ens->percentiles;
+      chart.issue_time_utc = w.issue_time_utc;
+      files.push_back({"chart.svg", render_run_chart_svg(chart)});
     }
     if (c.cut) {
       const EmissionCut cut =

@@ -8,6 +8,7 @@
 #include "lidbox/base/caution.hpp"
 #include "lidbox/base/error.hpp"
 #include "lidbox/base/text.hpp"
+#include "lidbox/report/chart.hpp"
 #include "lidbox/standards/averaging.hpp"
 
 namespace lidbox {
@@ -493,214 +494,29 @@ std::string summary_text(const EvaluationReportInput& in) {
 
 // ---- charts ----------------------------------------------------------------------------------
 
-// An axis from lo to hi in about 5 steps of 1, 2, 2.5 or 5 times a power of ten.
-struct Axis {
-  double lo = 0.0, hi = 1.0, step = 0.25;
-};
-
-Axis nice_axis(double lo, double hi) {
-  if (!(hi > lo)) hi = lo + 1.0;
-  const double raw = (hi - lo) / 5.0;
-  const double e = std::pow(10.0, std::floor(std::log10(raw)));
-  double step = 10.0 * e;
-  for (double m : {1.0, 2.0, 2.5, 5.0}) {
-    if (raw <= m * e) {
-      step = m * e;
-      break;
-    }
+// The charts' input: per monitor the model, the monitor and the fit on the run's hours.
+MonitorChartInput chart_input(const EvaluationReportInput& in) {
+  MonitorChartInput chart;
+  chart.c = in.c;
+  chart.hours = in.hours;
+  for (std::size_t k = 0; k < in.monitors.size(); ++k) {
+    const auto& m = in.monitors[k];
+    MonitorChartSeries s{m.label, m.pollutant, m.unit, in.modelled[k], {}, m.observed, {}};
+    s.substituted.assign(m.substituted.begin(), m.substituted.end());
+    if (in.after) s.fitted = in.fitted[k];
+    chart.series.push_back(std::move(s));
   }
-  Axis a;
-  a.step = step;
-  a.lo = std::floor(lo / step) * step;
-  a.hi = std::ceil(hi / step) * step;
-  return a;
-}
-
-void caution_lines(std::ostringstream& o, int x, double y, std::size_t chars = 140) {
-  std::string line, word;
-  std::istringstream words(kScreeningCaution);
-  while (words >> word) {
-    if (line.size() + word.size() > chars) {
-      o << "<text x=\"" << x << "\" y=\"" << y << "\" font-size=\"11\" fill=\"#555\">" << line
-        << "</text>\n";
-      line.clear();
-      y += 13.0;
-    }
-    line += (line.empty() ? "" : " ") + word;
-  }
-  o << "<text x=\"" << x << "\" y=\"" << y << "\" font-size=\"11\" fill=\"#555\">" << line
-    << "</text>\n";
+  return chart;
 }
 
 }  // namespace
 
 std::string render_evaluation_timeseries_svg(const EvaluationReportInput& in) {
-  const auto& hours = *in.hours;
-  const std::size_t n = hours.size();
-  const int W = 1100, left = 80, right = 30, panel_h = 190, gap = 50, top = 78;
-  const int panels = static_cast<int>(in.monitors.size());
-  const int H = top + panels * (panel_h + gap) + 30;
-  const double plot_w = W - left - right;
-  auto x_of = [&](double i) { return left + plot_w * i / static_cast<double>(n); };
-  std::ostringstream o;
-  o << "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"" << W << "\" height=\"" << H
-    << "\" font-family=\"sans-serif\" font-size=\"12\">\n<rect width=\"100%\" height=\"100%\" "
-       "fill=\"white\"/>\n"
-    << "<text x=\"" << left << "\" y=\"22\" font-size=\"15\" font-weight=\"bold\">" << in.c->name
-    << ": modelled hour means with the monitor overlaid (UTC hours; day ticks at local "
-       "midnight)</text>\n";
-  caution_lines(o, left, 40.0);
-  for (int k = 0; k < panels; ++k) {
-    const auto& m = in.monitors[static_cast<std::size_t>(k)];
-    const auto& model = in.modelled[static_cast<std::size_t>(k)];
-    const int y0 = top + k * (panel_h + gap);
-    double vmax = 0.0, vmin = 0.0;
-    for (std::size_t i = 0; i < n; ++i) {
-      vmax = std::max(vmax, model[i]);
-      if (!std::isnan(m.observed[i])) {
-        vmax = std::max(vmax, m.observed[i]);
-        vmin = std::min(vmin, m.observed[i]);
-      }
-      if (in.after) vmax = std::max(vmax, in.fitted[static_cast<std::size_t>(k)][i]);
-    }
-    const Axis ax = nice_axis(vmin, vmax);
-    vmin = ax.lo;
-    vmax = ax.hi;
-    auto y_of = [&](double v) { return y0 + panel_h - panel_h * (v - vmin) / (vmax - vmin); };
-    o << "<rect x=\"" << left << "\" y=\"" << y0 << "\" width=\"" << plot_w << "\" height=\""
-      << panel_h << "\" fill=\"none\" stroke=\"#333\"/>\n";
-    for (double v = vmin; v <= vmax + 0.5 * ax.step; v += ax.step) {
-      o << "<line x1=\"" << left - 4 << "\" x2=\"" << left + plot_w << "\" y1=\"" << y_of(v)
-        << "\" y2=\"" << y_of(v) << "\" stroke=\"#ddd\"/><text x=\"" << left - 6 << "\" y=\""
-        << y_of(v) + 4 << "\" text-anchor=\"end\">" << format_number(v, 4) << "</text>\n";
-    }
-    o << "<text x=\"16\" y=\"" << y0 + panel_h / 2 << "\" transform=\"rotate(-90 16 "
-      << y0 + panel_h / 2 << ")\" text-anchor=\"middle\">" << m.pollutant << " [" << m.unit
-      << "]</text>\n";
-    // Local-midnight ticks, labelled at most about 20 times.
-    std::size_t days = 0;
-    for (std::size_t i = 0; i < n; ++i) {
-      if (civil_from_utc_seconds(hours[i].start_utc + hours[i].civil_offset_s).hour == 0) ++days;
-    }
-    const std::size_t every = std::max<std::size_t>(1, (days + 19) / 20);
-    std::size_t d = 0;
-    for (std::size_t i = 0; i < n; ++i) {
-      const CivilTime lt = civil_from_utc_seconds(hours[i].start_utc + hours[i].civil_offset_s);
-      if (lt.hour != 0) continue;
-      if (d++ % every != 0) continue;
-      const double x = x_of(static_cast<double>(i));
-      char lab[16];
-      std::snprintf(lab, sizeof lab, "%02d-%02d", lt.month, lt.day);
-      o << "<line x1=\"" << x << "\" x2=\"" << x << "\" y1=\"" << y0 << "\" y2=\"" << y0 + panel_h
-        << "\" stroke=\"#eee\"/><text x=\"" << x + 2 << "\" y=\"" << y0 + panel_h + 14 << "\">"
-        << lab << "</text>\n";
-    }
-    auto path = [&](const std::vector<double>& v, const char* colour, double width,
-                    const char* dash) {
-      std::ostringstream p;
-      bool pen = false;
-      for (std::size_t i = 0; i < n; ++i) {
-        if (std::isnan(v[i])) {
-          pen = false;
-          continue;
-        }
-        p << (pen ? " L" : " M") << x_of(static_cast<double>(i) + 0.5) << "," << y_of(v[i]);
-        pen = true;
-      }
-      o << "<path d=\"" << p.str() << "\" fill=\"none\" stroke=\"" << colour << "\" stroke-width=\""
-        << width << "\""
-        << (dash[0] ? std::string(" stroke-dasharray=\"") + dash + "\"" : std::string()) << "/>\n";
-    };
-    path(model, "#2d7dd2", 1.3, "");
-    if (in.after) path(in.fitted[static_cast<std::size_t>(k)], "#f2a541", 1.3, "6,3");
-    path(m.observed, "#222", 1.0, "");
-    // Substituted below-detection hours as open red circles.
-    for (std::size_t i = 0; i < n; ++i) {
-      if (!m.substituted[i]) continue;
-      o << "<circle cx=\"" << x_of(static_cast<double>(i) + 0.5) << "\" cy=\""
-        << y_of(m.observed[i]) << "\" r=\"2.5\" fill=\"none\" stroke=\"#c8553d\"/>\n";
-    }
-    o << "<text x=\"" << left + 8 << "\" y=\"" << y0 + 16 << "\"><tspan font-weight=\"bold\">"
-      << m.label << "</tspan>: monitor (black), model (blue)"
-      << (in.after ? ", after the fit (orange, dashed)" : "")
-      << ", below detection substituted (red circles)</text>\n";
-  }
-  o << "</svg>\n";
-  return o.str();
+  return render_monitor_chart_svg(chart_input(in));
 }
 
 std::string render_evaluation_scatter_svg(const EvaluationReportInput& in) {
-  const int side = 380, pad = 70, gap = 40, top = 90;
-  const int panels = static_cast<int>(in.monitors.size());
-  const int cols = std::min(panels, 2);
-  const int rows = (panels + cols - 1) / cols;
-  const int W = std::max(760, pad + cols * (side + gap + pad));
-  const int H = top + rows * (side + gap + 40) + 20;
-  std::ostringstream o;
-  o << "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"" << W << "\" height=\"" << H
-    << "\" font-family=\"sans-serif\" font-size=\"12\">\n<rect width=\"100%\" height=\"100%\" "
-       "fill=\"white\"/>\n"
-    << "<text x=\"" << pad << "\" y=\"22\" font-size=\"15\" font-weight=\"bold\">" << in.c->name
-    << ": modelled against observed hour means; model (blue)"
-    << (in.after ? ", after the fit (orange)" : "") << "; lines 1:1, 2:1 and 1:2</text>\n";
-  caution_lines(o, pad, 40.0, static_cast<std::size_t>((W - pad) / 6.6));
-  for (int k = 0; k < panels; ++k) {
-    const auto& m = in.monitors[static_cast<std::size_t>(k)];
-    const auto& model = in.modelled[static_cast<std::size_t>(k)];
-    const int x0 = pad + (k % cols) * (side + gap + pad);
-    const int y0 = top + (k / cols) * (side + gap + 40);
-    double vmax = 0.0, vmin = 0.0;
-    for (std::size_t i = 0; i < model.size(); ++i) {
-      if (std::isnan(m.observed[i])) continue;
-      vmax = std::max({vmax, m.observed[i], model[i]});
-      vmin = std::min(vmin, m.observed[i]);
-      if (in.after) vmax = std::max(vmax, in.fitted[static_cast<std::size_t>(k)][i]);
-    }
-    const Axis ax = nice_axis(vmin, vmax);
-    vmin = ax.lo;
-    vmax = ax.hi;
-    auto X = [&](double v) { return x0 + side * (v - vmin) / (vmax - vmin); };
-    auto Y = [&](double v) { return y0 + side - side * (v - vmin) / (vmax - vmin); };
-    o << "<rect x=\"" << x0 << "\" y=\"" << y0 << "\" width=\"" << side << "\" height=\"" << side
-      << "\" fill=\"none\" stroke=\"#333\"/>\n";
-    for (double v = vmin; v <= vmax + 0.5 * ax.step; v += ax.step) {
-      o << "<text x=\"" << x0 - 6 << "\" y=\"" << Y(v) + 4 << "\" text-anchor=\"end\">"
-        << format_number(v, 4) << "</text><text x=\"" << X(v) << "\" y=\"" << y0 + side + 16
-        << "\" text-anchor=\"middle\">" << format_number(v, 4) << "</text>\n";
-    }
-    // 1:1 and factor-of-two lines, clipped to the square.
-    auto line = [&](double slope, const char* dash) {
-      const double hi = vmax / std::max(1.0, slope);
-      o << "<line x1=\"" << X(0) << "\" y1=\"" << Y(0) << "\" x2=\"" << X(hi) << "\" y2=\""
-        << Y(hi * slope) << "\" stroke=\"#888\""
-        << (dash[0] ? std::string(" stroke-dasharray=\"") + dash + "\"" : std::string()) << "/>\n";
-    };
-    line(1.0, "");
-    line(2.0, "4,3");
-    line(0.5, "4,3");
-    for (std::size_t i = 0; i < model.size(); ++i) {
-      if (std::isnan(m.observed[i])) continue;
-      o << "<circle cx=\"" << X(m.observed[i]) << "\" cy=\"" << Y(model[i])
-        << "\" r=\"1.8\" fill=\"#2d7dd2\" "
-        << "fill-opacity=\"0.5\"/>\n";
-    }
-    if (in.after) {
-      for (std::size_t i = 0; i < model.size(); ++i) {
-        if (std::isnan(m.observed[i])) continue;
-        o << "<circle cx=\"" << X(m.observed[i]) << "\" cy=\""
-          << Y(in.fitted[static_cast<std::size_t>(k)][i])
-          << "\" r=\"1.8\" fill=\"#f2a541\" fill-opacity=\"0.5\"/>\n";
-      }
-    }
-    o << "<text x=\"" << x0 << "\" y=\"" << y0 - 8 << "\"><tspan font-weight=\"bold\">" << m.label
-      << "</tspan> " << m.pollutant << "</text>\n"
-      << "<text x=\"" << x0 + side / 2 << "\" y=\"" << y0 + side + 34
-      << "\" text-anchor=\"middle\">observed [" << m.unit << "]</text><text x=\"" << x0 - 48
-      << "\" y=\"" << y0 + side / 2 << "\" transform=\"rotate(-90 " << x0 - 48 << " "
-      << y0 + side / 2 << ")\" text-anchor=\"middle\">modelled [" << m.unit << "]</text>\n";
-  }
-  o << "</svg>\n";
-  return o.str();
+  return render_scatter_svg(chart_input(in));
 }
 
 namespace {

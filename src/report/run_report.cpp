@@ -14,6 +14,7 @@
 #include "lidbox/base/caution.hpp"
 #include "lidbox/base/error.hpp"
 #include "lidbox/base/work_meter.hpp"
+#include "lidbox/report/chart.hpp"
 #include "lidbox/report/run_netcdf.hpp"
 
 namespace lidbox {
@@ -26,9 +27,13 @@ std::string part_name(const CaseSpec& c, std::size_t j) {
   return c.sectors[j - 2].name;
 }
 
-std::string unit_of(const PollutantSpec& p) { return p.unit.canonical; }
+std::string unit_of(const PollutantSpec& p) {
+  return p.unit.canonical;
+}
 
-double in_unit(const PollutantSpec& p, double g_m3) { return g_m3 / p.unit.to_g_m3; }
+double in_unit(const PollutantSpec& p, double g_m3) {
+  return g_m3 / p.unit.to_g_m3;
+}
 
 }  // namespace
 
@@ -157,8 +162,8 @@ std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunRes
   o << "\nCAUTION: " << kScreeningCaution << "\n\n";
   const UtcSeconds t0 = r.hours.front().start_utc;
   const UtcSeconds t1 = r.hours.back().start_utc + kSecondsPerHour;
-  o << "Period   " << format_utc(t0) << " to " << format_utc(t1) << " (" << n << " hours), time zone "
-    << c.zone.spec() << " (" << c.zone.kind_label() << ")\n";
+  o << "Period   " << format_utc(t0) << " to " << format_utc(t1) << " (" << n
+    << " hours), time zone " << c.zone.spec() << " (" << c.zone.kind_label() << ")\n";
   std::size_t filled = 0, calm = 0, lid = 0;
   for (const auto& h : r.hours) {
     filled += h.filled;
@@ -166,10 +171,10 @@ std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunRes
     lid += h.lid_floor;
   }
   o << "Met      " << met.source << ", read as "
-    << (c.met.reading == MetReading::instantaneous ? "instantaneous values (interpolated)"
-                                                   : std::string("hour averages stamped at the period ") +
-                                                         (c.met.hour_label == HourLabel::period_start ? "start" : "end") +
-                                                         " (held)")
+    << (c.met.reading == MetReading::instantaneous
+            ? "instantaneous values (interpolated)"
+            : std::string("hour averages stamped at the period ") +
+                  (c.met.hour_label == HourLabel::period_start ? "start" : "end") + " (held)")
     << "\nFlags    " << filled << " h gap-filled (linear interpolation), " << calm
     << " h under the calm floor (" << format_number(c.engine.min_wind_m_s, 3) << " m/s), " << lid
     << " h under the lid floor (" << format_number(c.engine.min_mixing_height_m, 4) << " m)\n";
@@ -177,13 +182,15 @@ std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunRes
     char buf[64];
     std::snprintf(buf, sizeof buf, "%.2g %%", 100.0 * r.spin_up_last_change);
     o << "Spin-up  first day repeated " << r.spin_up_days << " times; last change " << buf
-      << (r.spin_up_converged ? " (converged)" : " (NOT converged: raise spin_up_max_days)") << "\n";
+      << (r.spin_up_converged ? " (converged)" : " (NOT converged: raise spin_up_max_days)")
+      << "\n";
   } else {
     o << "Spin-up  none: started from the given initial values\n";
   }
   o << "\n";
   // Peak hour per pollutant and the shares of the parts at that hour and over the run.
-  o << "pollutant  unit      run mean   peak hour mean  peak hour (local start)      shares at peak\n";
+  o << "pollutant  unit      run mean   peak hour mean  peak hour (local start)      shares at "
+       "peak\n";
   for (std::size_t p = 0; p < r.n_pollutants; ++p) {
     const PollutantSpec& ps = c.pollutants[p];
     std::size_t peak = 0;
@@ -193,10 +200,11 @@ std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunRes
       if (r.total(i, p) > r.total(peak, p)) peak = i;
     }
     char line[256];
-    std::snprintf(line, sizeof line, "%-10s %-8s %10s %15s  %-28s ", ps.name.c_str(), unit_of(ps).c_str(),
-                  format_number(in_unit(ps, sum / static_cast<double>(n)), 4).c_str(),
-                  format_number(in_unit(ps, r.total(peak, p)), 4).c_str(),
-                  format_local(r.hours[peak].start_utc, c.zone).c_str());
+    std::snprintf(
+        line, sizeof line, "%-10s %-8s %10s %15s  %-28s ", ps.name.c_str(), unit_of(ps).c_str(),
+        format_number(in_unit(ps, sum / static_cast<double>(n)), 4).c_str(),
+        format_number(in_unit(ps, r.total(peak, p)), 4).c_str(),
+        format_local(r.hours[peak].start_utc, c.zone).c_str());
     o << line;
     const double tot = r.total(peak, p);
     bool first = true;
@@ -219,134 +227,6 @@ std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunRes
   }
   o << "\n";
   if (standards) o << "\n" << standards_summary(*standards);
-  return o.str();
-}
-
-std::string render_chart_svg(const CaseSpec& c, const RunResult& r) {
-  const std::size_t n = r.hours.size();
-  const int W = 1100, left = 80, right = 30, panel_h = 170, gap = 40, top = 64;
-  const int panels = 1 + static_cast<int>(r.n_pollutants);
-  const int H = top + panels * (panel_h + gap) + 40;
-  const double plot_w = W - left - right;
-  auto x_of = [&](double i) { return left + plot_w * i / static_cast<double>(n); };
-  std::ostringstream o;
-  o << "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"" << W << "\" height=\"" << H
-    << "\" font-family=\"sans-serif\" font-size=\"12\">\n<rect width=\"100%\" height=\"100%\" fill=\"white\"/>\n";
-  o << "<text x=\"" << left << "\" y=\"22\" font-size=\"15\" font-weight=\"bold\">" << c.name
-    << ": hour means (local time " << c.zone.spec() << ")</text>\n";
-  {
-    // The caution, wrapped to the chart's width.
-    std::string line, word;
-    std::istringstream words(kScreeningCaution);
-    double y = 38.0;
-    std::ostringstream lines;
-    while (words >> word) {
-      if (line.size() + word.size() > 150) {
-        lines << "<text x=\"" << left << "\" y=\"" << y << "\" font-size=\"11\" fill=\"#555\">" << line << "</text>\n";
-        line.clear();
-        y += 13.0;
-      }
-      line += (line.empty() ? "" : " ") + word;
-    }
-    lines << "<text x=\"" << left << "\" y=\"" << y << "\" font-size=\"11\" fill=\"#555\">" << line << "</text>\n";
-    o << lines.str();
-  }
-  // A palette of our own: muted, distinguishable, printable.
-  static const char* kColours[] = {"#9aa5b1", "#d9d2c5", "#c8553d", "#2d7dd2", "#f2a541",
-                                   "#588b8b", "#8e6c8a", "#3d5a80"};
-  auto axis = [&](int y0, double vmax, const std::string& label) {
-    o << "<rect x=\"" << left << "\" y=\"" << y0 << "\" width=\"" << plot_w << "\" height=\"" << panel_h
-      << "\" fill=\"none\" stroke=\"#333\"/>\n";
-    for (int k = 0; k <= 4; ++k) {
-      const double v = vmax * k / 4.0;
-      const double y = y0 + panel_h - panel_h * k / 4.0;
-      o << "<line x1=\"" << left - 4 << "\" x2=\"" << left + plot_w << "\" y1=\"" << y << "\" y2=\"" << y
-        << "\" stroke=\"#ddd\"/><text x=\"" << left - 6 << "\" y=\"" << y + 4 << "\" text-anchor=\"end\">"
-        << format_number(v, 6) << "</text>\n";
-    }
-    o << "<text x=\"16\" y=\"" << y0 + panel_h / 2 << "\" transform=\"rotate(-90 16 " << y0 + panel_h / 2
-      << ")\" text-anchor=\"middle\">" << label << "</text>\n";
-    // Day ticks at local midnight.
-    for (std::size_t i = 0; i < n; ++i) {
-      const CivilTime lt = civil_from_utc_seconds(r.hours[i].start_utc + r.hours[i].civil_offset_s);
-      if (lt.hour != 0) continue;
-      const double x = x_of(static_cast<double>(i));
-      char d[16];
-      std::snprintf(d, sizeof d, "%02d-%02d", lt.month, lt.day);
-      o << "<line x1=\"" << x << "\" x2=\"" << x << "\" y1=\"" << y0 << "\" y2=\"" << y0 + panel_h
-        << "\" stroke=\"#bbb\" stroke-dasharray=\"3,3\"/><text x=\"" << x + 3 << "\" y=\"" << y0 + panel_h + 14
-        << "\">" << d << "</text>\n";
-    }
-  };
-  auto nice_max = [](double v) {
-    if (!(v > 0.0)) return 1.0;
-    const double e = std::pow(10.0, std::floor(std::log10(v)));
-    for (double m : {1.0, 2.0, 2.5, 5.0, 10.0}) {
-      if (v <= m * e) return m * e;
-    }
-    return 10.0 * e;
-  };
-  // Panel 1: mixing height (filled) and residual-layer top (line).
-  {
-    const int y0 = top;
-    double hmax = 0.0;
-    for (const auto& h : r.hours) hmax = std::max({hmax, h.mixing_height_m, h.residual_top_m});
-    hmax = nice_max(hmax);
-    axis(y0, hmax, "height [m]");
-    std::ostringstream area, rl;
-    area << "M" << x_of(0) << "," << y0 + panel_h;
-    for (std::size_t i = 0; i < n; ++i) {
-      const double y = y0 + panel_h - panel_h * r.hours[i].mixing_height_m / hmax;
-      area << " L" << x_of(static_cast<double>(i)) << "," << y << " L" << x_of(static_cast<double>(i + 1)) << "," << y;
-      rl << (i == 0 ? "M" : " L") << x_of(static_cast<double>(i) + 0.5) << ","
-         << y0 + panel_h - panel_h * r.hours[i].residual_top_m / hmax;
-    }
-    area << " L" << x_of(static_cast<double>(n)) << "," << y0 + panel_h << " Z";
-    o << "<path d=\"" << area.str() << "\" fill=\"#a7c6da\" stroke=\"none\"/>\n";
-    o << "<path d=\"" << rl.str() << "\" fill=\"none\" stroke=\"#3d5a80\" stroke-width=\"1.2\" stroke-dasharray=\"5,3\"/>\n";
-    for (std::size_t i = 0; i < n; ++i) {
-      if (!r.hours[i].calm_floor) continue;
-      o << "<rect x=\"" << x_of(static_cast<double>(i)) << "\" y=\"" << y0 + panel_h - 6 << "\" width=\""
-        << plot_w / static_cast<double>(n) << "\" height=\"6\" fill=\"#c8553d\"/>\n";
-    }
-    o << "<text x=\"" << left + 8 << "\" y=\"" << y0 + 16
-      << "\">mixing height (filled), residual-layer top (dashed), calm-floor hours (red ticks)</text>\n";
-  }
-  // One panel per pollutant: stacked parts.
-  for (std::size_t p = 0; p < r.n_pollutants; ++p) {
-    const PollutantSpec& ps = c.pollutants[p];
-    const int y0 = top + static_cast<int>(p + 1) * (panel_h + gap);
-    double vmax = 0.0;
-    for (std::size_t i = 0; i < n; ++i) vmax = std::max(vmax, in_unit(ps, r.total(i, p)));
-    vmax = nice_max(vmax);
-    axis(y0, vmax, ps.name + " [" + unit_of(ps) + "]");
-    std::vector<double> base(n, 0.0);
-    double legend_x = left + 8;
-    for (std::size_t j = 0; j < r.n_parts; ++j) {
-      bool any = false;
-      for (std::size_t i = 0; i < n; ++i) any = any || r.mean(i, p, j) > 0.0;
-      if (!any) continue;
-      std::ostringstream d;
-      for (std::size_t i = 0; i < n; ++i) {
-        const double y = y0 + panel_h - panel_h * (base[i] + in_unit(ps, r.mean(i, p, j))) / vmax;
-        d << (i == 0 ? "M" : " L") << x_of(static_cast<double>(i)) << "," << y << " L"
-          << x_of(static_cast<double>(i + 1)) << "," << y;
-      }
-      for (std::size_t k = n; k-- > 0;) {
-        const double y = y0 + panel_h - panel_h * base[k] / vmax;
-        d << " L" << x_of(static_cast<double>(k + 1)) << "," << y << " L" << x_of(static_cast<double>(k)) << "," << y;
-      }
-      d << " Z";
-      const char* colour = kColours[j % 8];
-      o << "<path d=\"" << d.str() << "\" fill=\"" << colour << "\" stroke=\"none\"/>\n";
-      for (std::size_t i = 0; i < n; ++i) base[i] += in_unit(ps, r.mean(i, p, j));
-      o << "<rect x=\"" << legend_x << "\" y=\"" << y0 + 7 << "\" width=\"10\" height=\"10\" fill=\"" << colour
-        << "\"/><text x=\"" << legend_x + 14 << "\" y=\"" << y0 + 16 << "\">" << part_name(c, j) << "</text>\n";
-      legend_x += 24 + 7.0 * static_cast<double>(part_name(c, j).size());
-    }
-  }
-  o << "<text x=\"" << left << "\" y=\"" << H - 10 << "\" fill=\"#555\">lidbox " << LIDBOX_VERSION
-    << " - hour means of a single well-mixed box; parts stacked: background, then each sector</text>\n</svg>\n";
   return o.str();
 }
 
@@ -380,7 +260,7 @@ void run_on_two_threads(const std::vector<std::function<void()>>& tasks) {
 
 std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
                               const RunResult& r, const StandardsReport* standards, bool netcdf,
-                              CfFileFormat format) {
+                              CfFileFormat format, bool chart) {
   std::string summary = render_summary(c, met, r, standards);
   std::vector<std::function<void()>> tasks;
   // NetCDF-C is not thread-safe: its files are one task. The longest tasks go first.
@@ -398,7 +278,17 @@ std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const Met
       f.close();
     });
   }
-  tasks.emplace_back([&] { folder.write_whole("chart.svg", render_chart_svg(c, r)); });
+  if (chart) {
+    tasks.emplace_back([&] {
+      RunChartInput in;
+      in.c = &c;
+      in.r = &r;
+      in.standards = standards;
+      in.issue_time_utc =
+          standards ? standards->options.issue_time_utc : run_issue_time(c, std::nullopt);
+      folder.write_whole("chart.svg", render_run_chart_svg(in));
+    });
+  }
   tasks.emplace_back([&] {
     if (standards) {
       for (const auto& f : render_standards_report(*standards))
@@ -407,6 +297,13 @@ std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const Met
   });
   run_on_two_threads(tasks);
   return summary;
+}
+
+std::optional<UtcSeconds> run_issue_time(const CaseSpec& c,
+                                         std::optional<UtcSeconds> issue_time_override) {
+  if (issue_time_override) return issue_time_override;
+  if (c.standards) return c.standards->issue_time_utc;
+  return std::nullopt;
 }
 
 RunWritten run_and_write(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
@@ -420,9 +317,20 @@ RunWritten run_and_write(OutputFolder& folder, const CaseSpec& c, const MetSerie
   budget.close();
   if (options.after_run) options.after_run();
   out.standards = run_standards(c, out.result, options.issue_time);
-  out.summary =
-      write_run_outputs(folder, c, met, out.result, out.standards ? &*out.standards : nullptr,
-                        options.netcdf, options.format);
+  out.issue_time_utc = run_issue_time(c, options.issue_time);
+  const StandardsReport* standards = out.standards ? &*out.standards : nullptr;
+  out.summary = write_run_outputs(folder, c, met, out.result, standards, options.netcdf,
+                                  options.format, false);
+  // Drawn here rather than among the tables so that a command-line issue time reaches it
+  // without standards too; it costs little (tests/bench/chart.sh).
+  if (options.chart) {
+    RunChartInput in;
+    in.c = &c;
+    in.r = &out.result;
+    in.standards = standards;
+    in.issue_time_utc = out.issue_time_utc;
+    folder.write_whole("chart.svg", render_run_chart_svg(in));
+  }
   return out;
 }
 

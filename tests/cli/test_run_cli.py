@@ -248,7 +248,7 @@ def test_bad_inputs():
                  "expected a decimal number, or an empty cell for a missing value",
                  met_lines=lambda L: replace_field(L, 10, 1, "abc"))
     expect_error("long gap",
-                 "cindervale-met.csv: a gap of 4 hours (2026-01-12T16:00:00Z to "
+                 "cindervale-met.csv:11: a gap of 4 hours (2026-01-12T16:00:00Z to "
                  "2026-01-12T19:00:00Z); expected gaps of at most 3 hours (set [met] max_gap_hours "
                  "to fill longer gaps, or split the run)",
                  met_lines=lambda L: L[:10] + L[14:])

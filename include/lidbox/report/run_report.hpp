@@ -57,22 +57,29 @@ class BudgetStream {
 // the case names rule sets.
 std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunResult& r,
                            const StandardsReport* standards = nullptr);
-// chart.svg: mixing height and wind, then each pollutant's hour means stacked by part.
-std::string render_chart_svg(const CaseSpec& c, const RunResult& r);
-
 // Every file of a run into `folder` (published by the caller) except summary.txt, whose text is
 // returned for the caller to complete and write: hourly.csv, budget.csv (unless the run streamed
-// it), chart.svg, then the standards tables and reports (limits.csv, daily.csv,
-// periods.csv, aqi.csv, aqhi.csv, episodes.csv, report.md, report.json) when given, and the
-// NetCDF files (run_netcdf.hpp) with `netcdf`. Independent files are written on two threads.
+// it), chart.svg (chart.hpp; unless `chart` is false, for a caller that draws it later with
+// more, such as an ensemble's band), then the standards tables and reports (limits.csv,
+// daily.csv, periods.csv, aqi.csv, aqhi.csv, episodes.csv, report.md, report.json) when given,
+// and the NetCDF files (run_netcdf.hpp) with `netcdf`. Independent files are written on two
+// threads.
 std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
                               const RunResult& r, const StandardsReport* standards, bool netcdf,
-                              CfFileFormat format = CfFileFormat::netcdf4_classic);
+                              CfFileFormat format = CfFileFormat::netcdf4_classic,
+                              bool chart = true);
+
+// The forecast issue time a run's outputs use: the override (command line), else the case's
+// [standards] issue_time, else none.
+std::optional<UtcSeconds> run_issue_time(const CaseSpec& c,
+                                         std::optional<UtcSeconds> issue_time_override);
 
 struct RunWriteOptions {
   bool netcdf = false;
   CfFileFormat format = CfFileFormat::netcdf4_classic;
   std::optional<UtcSeconds> issue_time;  // overrides the case's [standards] issue_time
+  // false: chart.svg is left to the caller (render_run_chart_svg), e.g. to add an ensemble band
+  bool chart = true;
   ProgressFn progress;
   std::function<void()> after_run;  // called when the stepping is done (progress, timing)
 };
@@ -81,6 +88,7 @@ struct RunWritten {
   RunResult result;  // with its budget streamed (RunResult::budget_streamed)
   std::optional<StandardsReport> standards;
   std::string summary;
+  std::optional<UtcSeconds> issue_time_utc;  // run_issue_time
 };
 
 // A whole run into `folder` (published by the caller): the budget streamed to its files while
