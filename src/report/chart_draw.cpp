@@ -139,8 +139,21 @@ void draw_band(svg::Writer& w, const TimeCanvas& t, const Panel& p, const std::v
 
 void draw_area(svg::Writer& w, const TimeCanvas& t, const Panel& p, const std::vector<double>& v,
                std::string_view style) {
-  const std::vector<double> base(v.size(), std::max(0.0, p.axis.lo));
-  draw_band(w, t, p, base, v, style);
+  // One closed piece per run of finite values: its top edge and two corners on the base.
+  const double base = p.y_of(std::max(0.0, p.axis.lo));
+  w.path_begin();
+  std::size_t k = 0;
+  while (k < v.size()) {
+    if (!std::isfinite(v[k])) {
+      ++k;
+      continue;
+    }
+    w.move_to(t.x_of_bin(k), base);
+    for (; k < v.size() && std::isfinite(v[k]); ++k) w.line_to(t.x_of_bin(k), p.y_of(v[k]));
+    w.line_to(t.x_of_bin(k - 1), base);
+    w.close_path();
+  }
+  w.path_end(style);
 }
 
 void draw_series(svg::Writer& w, const TimeCanvas& t, const Panel& p, const BinStats& s,

@@ -258,11 +258,13 @@ void stack_panel(svg::Writer& w, const TimeCanvas& t, const RunChartInput& in, s
                  nice_axis(0.0, layers.empty() ? 1.0 : highest({&layers.back()}) * 1.02)};
   draw_frame(w, t, pn, ps.name + " parts [" + ps.unit.canonical + "]");
   std::vector<LegendItem> legend;
-  const std::vector<double> zero(t.bins.count(), 0.0);
+  // Each layer's cumulative area from the base, the top one first: half the points of bands.
+  for (std::size_t k = layers.size(); k-- > 0;) {
+    const char* colour = kPaletteStack[parts[k] % std::size(kPaletteStack)];
+    draw_area(w, t, pn, layers[k], "fill=\"" + std::string(colour) + "\"");
+  }
   for (std::size_t k = 0; k < layers.size(); ++k) {
     const char* colour = kPaletteStack[parts[k] % std::size(kPaletteStack)];
-    draw_band(w, t, pn, k == 0 ? zero : layers[k - 1], layers[k],
-              "fill=\"" + std::string(colour) + "\" stroke=\"white\" stroke-width=\"0.3\"");
     legend.push_back({"fill:" + std::string(colour), part_name(*in.c, parts[k])});
   }
   legend.insert(legend.begin(), {"none", "stacked by part:"});
