@@ -172,6 +172,7 @@ void draw_mark(svg::Writer& w, const TimeCanvas& t, const Panel& p, double hour,
                std::string_view label) {
   const double x = t.x_of(hour);
   w.line(x, p.y, x, p.y + p.h, "stroke=\"#333\" stroke-width=\"1.5\" stroke-dasharray=\"2,3\"");
+  if (label.empty()) return;
   const bool right_half = x > kLeft + 0.6 * kPlotWidth;
   w.text(right_half ? x - 4 : x + 4, p.y + p.h - 6, label,
          right_half ? "text-anchor=\"end\" font-size=\"11\"" : "font-size=\"11\"");
