@@ -48,6 +48,150 @@ struct Cursor {
   }
 };
 
+const char* const kExpectedUnits =
+    "time units \"<unit> since <date> [time] [offset]\" with a unit of seconds, minutes, hours "
+    "or days, e.g. \"hours since 2026-01-05 00:00:00 +00:00\" (CF Conventions 4.4)";
+
+CfCalendar parse_calendar(std::string_view calendar, const std::string& w) {
+  const std::string cal = lower(trim(calendar));
+  if (cal.empty() || cal == "standard" || cal == "gregorian") return CfCalendar::standard;
+  if (cal == "proleptic_gregorian") return CfCalendar::proleptic_gregorian;
+  throw InputError(w, "calendar \"" + std::string(calendar) + "\"",
+                   "calendar standard, gregorian or proleptic_gregorian (lidbox works on real "
+                   "UTC hours; model calendars such as noleap or 360_day, and julian, utc or "
+                   "tai, have no faithful map onto them)");
+}
+
+// Seconds per unit of the word before " since " (UDUNITS-2 names and abbreviations).
+double seconds_per_unit(std::string_view units, std::size_t since, const std::string& w) {
+  const std::string low = lower(units);
+  const std::string unit_word(trim(std::string_view(low).substr(0, since)));
+  static const std::vector<std::pair<std::vector<std::string>, double>> kUnits = {
+      {{"seconds", "second", "secs", "sec", "s"}, 1.0},
+      {{"minutes", "minute", "mins", "min"}, 60.0},
+      {{"hours", "hour", "hrs", "hr", "h"}, 3600.0},
+      {{"days", "day", "d"}, 86400.0},
+  };
+  for (const auto& [names, s] : kUnits) {
+    for (const auto& n : names) {
+      if (unit_word == n) return s;
+    }
+  }
+  throw InputError(w, "time unit \"" + unit_word + "\" in units \"" + std::string(units) + "\"",
+                   kExpectedUnits);
+}
+
+// The reference instant's fields, read from "[-]Y-M-D [T| ]h:m[:s[.f]] [offset]".
+struct Reference {
+  int year = 0, month = 0, day = 0, hour = 0, minute = 0, second = 0;
+  double fraction = 0.0;
+  bool has_time = false;
+  int offset_s = 0;
+};
+
+class ReferenceReader {
+ public:
+  ReferenceReader(std::string_view text, std::string_view units, std::string w)
+      : c_{text}, units_(units), w_(std::move(w)) {}
+
+  InputError bad(const std::string& why) const {
+    return InputError(w_,
+                      "reference date \"" + std::string(c_.s) + "\" in units \"" +
+                          std::string(units_) + "\" " + why,
+                      kExpectedUnits);
+  }
+
+  Reference read() {
+    Reference r;
+    const bool negative_year = c_.take('-');
+    if (!c_.number(4, r.year) || !c_.take('-') || !c_.number(2, r.month) || !c_.take('-') ||
+        !c_.number(2, r.day)) {
+      throw bad("is not a date of the form YYYY-MM-DD");
+    }
+    if (negative_year) r.year = -r.year;
+    read_time_of_day(r);
+    if (r.month < 1 || r.month > 12 || r.day < 1 || r.day > 31 || r.hour > 23 || r.minute > 59 ||
+        r.second > 60) {
+      throw bad("has a field out of range");
+    }
+    if (r.second == 60) throw bad("names a leap second");
+    // Day-of-month check through a round trip of the proleptic Gregorian count.
+    const CivilTime probe =
+        civil_from_utc_seconds(days_from_civil(r.year, r.month, r.day) * kSecondsPerDay);
+    if (probe.day != r.day || probe.month != r.month) throw bad("is not a calendar date");
+    read_offset(r);
+    return r;
+  }
+
+  [[nodiscard]] std::string_view text() const { return c_.s; }
+
+ private:
+  void read_time_of_day(Reference& r) {
+    const std::size_t after_date = c_.pos;
+    if (!(c_.take('T') || c_.take('t') || c_.peek() == ' ')) return;
+    c_.spaces();
+    int nd = 0;
+    const std::size_t time_start = c_.pos;
+    if (c_.number(2, r.hour, &nd) && c_.take(':')) {
+      r.has_time = true;
+      if (!c_.number(2, r.minute)) throw bad("has an invalid time of day");
+      if (c_.take(':')) {
+        if (!c_.number(2, r.second)) throw bad("has invalid seconds");
+        if (c_.take('.')) {
+          double scale = 0.1;
+          while (!c_.done() && is_digit(c_.peek())) {
+            r.fraction += scale * (c_.peek() - '0');
+            scale /= 10.0;
+            ++c_.pos;
+          }
+        }
+      }
+    } else {
+      // No time of day: what follows (if anything) is the offset.
+      r.hour = 0;
+      c_.pos = time_start;
+      if (c_.pos == after_date + 1 && c_.s[after_date] != ' ') {
+        throw bad("has a 'T' without a time of day");
+      }
+    }
+  }
+
+  void read_offset(Reference& r) {
+    c_.spaces();
+    if (c_.done()) return;
+    const std::string rest = lower(c_.s.substr(c_.pos));
+    if (rest == "z" || rest == "utc" || rest == "gmt") {
+      c_.pos = c_.s.size();
+      return;
+    }
+    if (!r.has_time) {
+      // "2026-01-05 06" could be an hour or an offset; CF gives an offset only after a time.
+      throw bad("has text after the date that is not a time of day (h:m[:s])");
+    }
+    const int sign = c_.take('-') ? -1 : (c_.take('+'), 1);
+    int a = 0, nd = 0;
+    if (!c_.number(4, a, &nd)) throw bad("has an invalid UTC offset");
+    int oh = 0, om = 0;
+    if (c_.take(':')) {
+      if (nd > 2 || !c_.number(2, om)) throw bad("has an invalid UTC offset");
+      oh = a;
+    } else if (nd <= 2) {
+      oh = a;  // H or HH
+    } else {
+      oh = a / 100;  // HMM or HHMM
+      om = a % 100;
+    }
+    if (oh > 23 || om > 59) throw bad("has a UTC offset out of range");
+    r.offset_s = sign * (oh * 3600 + om * 60);
+    c_.spaces();
+    if (!c_.done()) throw bad("has unexpected text \"" + std::string(c_.s.substr(c_.pos)) + "\"");
+  }
+
+  Cursor c_;
+  std::string_view units_;
+  std::string w_;
+};
+
 }  // namespace
 
 CfTimeUnits parse_cf_time_units(std::string_view units, std::string_view calendar,
@@ -56,144 +200,21 @@ CfTimeUnits parse_cf_time_units(std::string_view units, std::string_view calenda
   CfTimeUnits r;
   r.units_text = std::string(units);
   r.calendar_text = std::string(calendar);
-  const std::string expected_units =
-      "time units \"<unit> since <date> [time] [offset]\" with a unit of seconds, minutes, hours "
-      "or days, e.g. \"hours since 2026-01-05 00:00:00 +00:00\" (CF Conventions 4.4)";
-
-  const std::string cal = lower(trim(calendar));
-  if (cal.empty() || cal == "standard" || cal == "gregorian") {
-    r.calendar = CfCalendar::standard;
-  } else if (cal == "proleptic_gregorian") {
-    r.calendar = CfCalendar::proleptic_gregorian;
-  } else {
-    throw InputError(w, "calendar \"" + std::string(calendar) + "\"",
-                     "calendar standard, gregorian or proleptic_gregorian (lidbox works on real "
-                     "UTC hours; model calendars such as noleap or 360_day, and julian, utc or "
-                     "tai, have no faithful map onto them)");
-  }
-
-  const std::string low = lower(units);
-  const std::size_t since = low.find(" since ");
+  r.calendar = parse_calendar(calendar, w);
+  const std::size_t since = lower(units).find(" since ");
   if (since == std::string::npos) {
-    throw InputError(w, "units \"" + std::string(units) + "\" (no \"since\")", expected_units);
+    throw InputError(w, "units \"" + std::string(units) + "\" (no \"since\")", kExpectedUnits);
   }
-  const std::string unit_word(trim(std::string_view(low).substr(0, since)));
-  static const std::vector<std::pair<std::vector<std::string>, double>> kUnits = {
-      {{"seconds", "second", "secs", "sec", "s"}, 1.0},
-      {{"minutes", "minute", "mins", "min"}, 60.0},
-      {{"hours", "hour", "hrs", "hr", "h"}, 3600.0},
-      {{"days", "day", "d"}, 86400.0},
-  };
-  bool found = false;
-  for (const auto& [names, s] : kUnits) {
-    for (const auto& n : names) {
-      if (unit_word == n) {
-        r.seconds_per_unit = s;
-        found = true;
-      }
-    }
-  }
-  if (!found) {
-    throw InputError(w, "time unit \"" + unit_word + "\" in units \"" + std::string(units) + "\"",
-                     expected_units);
-  }
-
-  // Reference date: [-]Y-M-D, then optional [T| ]h:m[:s[.f]], then an optional offset.
-  Cursor c{trim(std::string_view(units).substr(since + 7))};
-  const auto bad_date = [&](const std::string& why) {
-    return InputError(w,
-                      "reference date \"" + std::string(c.s) + "\" in units \"" +
-                          std::string(units) + "\" " + why,
-                      expected_units);
-  };
-  const bool negative_year = c.take('-');
-  int year = 0, month = 0, day = 0;
-  if (!c.number(4, year) || !c.take('-') || !c.number(2, month) || !c.take('-') ||
-      !c.number(2, day)) {
-    throw bad_date("is not a date of the form YYYY-MM-DD");
-  }
-  if (negative_year) year = -year;
-  int hour = 0, minute = 0, second = 0;
-  double fraction = 0.0;
-  const std::size_t after_date = c.pos;
-  bool has_time = false;
-  if (c.take('T') || c.take('t') || c.peek() == ' ') {
-    c.spaces();
-    int nd = 0;
-    const std::size_t time_start = c.pos;
-    if (c.number(2, hour, &nd) && c.take(':')) {
-      has_time = true;
-      if (!c.number(2, minute)) throw bad_date("has an invalid time of day");
-      if (c.take(':')) {
-        if (!c.number(2, second)) throw bad_date("has invalid seconds");
-        if (c.take('.')) {
-          double scale = 0.1;
-          while (!c.done() && is_digit(c.peek())) {
-            fraction += scale * (c.peek() - '0');
-            scale /= 10.0;
-            ++c.pos;
-          }
-        }
-      }
-    } else {
-      // No time of day: what follows (if anything) is the offset.
-      c.pos = time_start;
-      if (c.pos == after_date + 1 && c.s[after_date] != ' ') {
-        throw bad_date("has a 'T' without a time of day");
-      }
-    }
-  }
-  if (month < 1 || month > 12 || day < 1 || day > 31 || hour > 23 || minute > 59 || second > 60) {
-    throw bad_date("has a field out of range");
-  }
-  if (second == 60) throw bad_date("names a leap second");
-  // Day-of-month check through a round trip of the proleptic Gregorian count.
-  const std::int64_t days = days_from_civil(year, month, day);
-  {
-    const CivilTime probe = civil_from_utc_seconds(days * kSecondsPerDay);
-    if (probe.day != day || probe.month != month) throw bad_date("is not a calendar date");
-  }
-
-  // Offset.
-  c.spaces();
-  int offset_s = 0;
-  if (!c.done()) {
-    const std::string rest = lower(c.s.substr(c.pos));
-    if (rest == "z" || rest == "utc" || rest == "gmt") {
-      c.pos = c.s.size();
-    } else if (!has_time) {
-      // "2026-01-05 06" could be an hour or an offset; CF gives an offset only after a time.
-      throw bad_date("has text after the date that is not a time of day (h:m[:s])");
-    } else {
-      int sign = 1;
-      if (c.take('+')) {
-        sign = 1;
-      } else if (c.take('-')) {
-        sign = -1;
-      }
-      int a = 0, nd = 0;
-      if (!c.number(4, a, &nd)) throw bad_date("has an invalid UTC offset");
-      int oh = 0, om = 0;
-      if (c.take(':')) {
-        if (nd > 2 || !c.number(2, om)) throw bad_date("has an invalid UTC offset");
-        oh = a;
-      } else if (nd <= 2) {
-        oh = a;  // H or HH
-      } else {
-        oh = a / 100;  // HMM or HHMM
-        om = a % 100;
-      }
-      if (oh > 23 || om > 59) throw bad_date("has a UTC offset out of range");
-      offset_s = sign * (oh * 3600 + om * 60);
-    }
-    c.spaces();
-    if (!c.done()) throw bad_date("has unexpected text \"" + std::string(c.s.substr(c.pos)) + "\"");
-  }
-  r.reference_utc = days * kSecondsPerDay + hour * 3600LL + minute * 60LL + second - offset_s;
-  r.reference_fraction_s = fraction;
+  r.seconds_per_unit = seconds_per_unit(units, since, w);
+  ReferenceReader reader(trim(units.substr(since + 7)), units, w);
+  const Reference ref = reader.read();
+  r.reference_utc = days_from_civil(ref.year, ref.month, ref.day) * kSecondsPerDay +
+                    ref.hour * 3600LL + ref.minute * 60LL + ref.second - ref.offset_s;
+  r.reference_fraction_s = ref.fraction;
   if (r.calendar == CfCalendar::standard && r.reference_utc < kGregorianStart) {
+    const std::string cal = lower(trim(calendar));
     throw InputError(w,
-                     "reference date \"" + std::string(c.s) +
+                     "reference date \"" + std::string(reader.text()) +
                          "\" before 1582-10-15 in calendar \"" +
                          (cal.empty() ? std::string("standard") : cal) + "\"",
                      "a reference date on or after 1582-10-15, or calendar proleptic_gregorian "

@@ -144,29 +144,63 @@ std::string parse(std::string_view spec, bool require_rules, Zone& out) {
   return "";
 }
 
-int civil_offset_s(const Zone& zone, UtcSeconds t) {
-  if (!zone.has_dst) return zone.std_east_s;
-  int y =
+namespace {
+
+bool same_rule(const Rule& a, const Rule& b) {
+  return a.kind == b.kind && a.a == b.a && a.week == b.week && a.weekday == b.weekday &&
+         a.time_s == b.time_s;
+}
+
+bool same_zone(const Zone& a, const Zone& b) {
+  return a.std_east_s == b.std_east_s && a.has_dst == b.has_dst && a.dst_east_s == b.dst_east_s &&
+         same_rule(a.start, b.start) && same_rule(a.end, b.end);
+}
+
+struct Change {
+  UtcSeconds at;
+  bool to_dst;
+};
+
+// The changes of the years around one local-standard year, and the instants that year spans:
+// consecutive hours of a run fall in the same year, so their offsets need no new rule days.
+struct YearChanges {
+  Zone zone;
+  UtcSeconds from = 1, to = 0;  // [from, to): the year's instants; empty until filled
+  std::array<Change, 6> changes{};
+};
+
+const YearChanges& changes_around(const Zone& zone, UtcSeconds t) {
+  thread_local YearChanges cache;
+  if (t >= cache.from && t < cache.to && same_zone(cache.zone, zone)) return cache;
+  const int y =
       civil_from_utc_seconds(std::clamp<UtcSeconds>(t, -3'200'000'000'000LL, 3'100'000'000'000LL) +
                              zone.std_east_s)
           .year;
-  // The latest change at or before t, among those of the neighbouring years: a change's instant
-  // may fall in the next or previous year when its local time is near the new year.
-  struct Change {
-    UtcSeconds at;
-    bool to_dst;
-  };
-  std::array<Change, 6> changes{};
+  cache.zone = zone;
+  // Inside the clamp the cached span is the year's; at the clamp's ends, the one instant asked.
+  const bool clamped = t < -3'200'000'000'000LL || t > 3'100'000'000'000LL;
+  cache.from = clamped ? t : days_from_civil(y, 1, 1) * kSecondsPerDay - zone.std_east_s;
+  cache.to = clamped ? t + 1 : days_from_civil(y + 1, 1, 1) * kSecondsPerDay - zone.std_east_s;
+  // A change's instant may fall in the next or previous year when its local time is near the
+  // new year: the changes of the neighbouring years are kept too.
   std::size_t n = 0;
   for (int k = y - 1; k <= y + 1; ++k) {
-    changes[n++] = {rule_day(zone.start, k) * kSecondsPerDay + zone.start.time_s - zone.std_east_s,
-                    true};
-    changes[n++] = {rule_day(zone.end, k) * kSecondsPerDay + zone.end.time_s - zone.dst_east_s,
-                    false};
+    cache.changes[n++] = {
+        rule_day(zone.start, k) * kSecondsPerDay + zone.start.time_s - zone.std_east_s, true};
+    cache.changes[n++] = {rule_day(zone.end, k) * kSecondsPerDay + zone.end.time_s - zone.dst_east_s,
+                          false};
   }
+  return cache;
+}
+
+}  // namespace
+
+int civil_offset_s(const Zone& zone, UtcSeconds t) {
+  if (!zone.has_dst) return zone.std_east_s;
+  // The latest change at or before t.
   bool found = false;
   Change latest{0, false};
-  for (const Change& ch : changes) {
+  for (const Change& ch : changes_around(zone, t).changes) {
     if (ch.at <= t && (!found || ch.at > latest.at || (ch.at == latest.at && !ch.to_dst))) {
       latest = ch;
       found = true;

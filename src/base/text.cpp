@@ -6,6 +6,7 @@
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
+#include <filesystem>
 #include <fstream>
 #include <sstream>
 
@@ -62,6 +63,84 @@ std::vector<std::string> split_csv_row(const std::string& line) {
   return out;
 }
 
+std::vector<std::string> split_csv_row(const std::string& line, const std::string& where) {
+  bool quoted = false;
+  std::size_t opened = 0;
+  for (std::size_t i = 0; i < line.size(); ++i) {
+    if (line[i] != '"') continue;
+    if (quoted && i + 1 < line.size() && line[i + 1] == '"') {
+      ++i;
+    } else {
+      quoted = !quoted;
+      if (quoted) opened = i;
+    }
+  }
+  if (quoted) {
+    throw InputError(where,
+                     "a quote opened at character " + std::to_string(opened + 1) +
+                         " is not closed (" + excerpt(std::string_view(line).substr(opened)) + ")",
+                     "a closing quote on the same line");
+  }
+  return split_csv_row(line);
+}
+
+std::string_view strip_utf8_bom(std::string_view text) {
+  if (text.substr(0, 3) == "\xEF\xBB\xBF") text.remove_prefix(3);
+  return text;
+}
+
+void refuse_cr_only_lines(std::string_view text, const std::string& display_name) {
+  const std::size_t cr = text.find('\r');
+  if (cr == std::string_view::npos) return;
+  if (cr + 1 < text.size() && text[cr + 1] == '\n') return;
+  if (cr + 1 == text.size() && text.find('\n') == std::string_view::npos) {
+    // One line with a CR at its very end and nothing after: still one line; let the reader judge.
+    return;
+  }
+  const std::size_t lf = text.find('\n');
+  if (lf != std::string_view::npos && lf < cr) return;  // a stray CR inside a later LF line
+  throw InputError(display_name + ":1", "lines end in a carriage return alone (CR, old Mac style)",
+                   "lines ending in LF or CR LF");
+}
+
+std::string separator_hint(std::string_view header_line) {
+  if (header_line.find(',') != std::string_view::npos) return "";
+  if (header_line.find(';') != std::string_view::npos) {
+    return " (the header holds semicolons: the separator must be a comma)";
+  }
+  if (header_line.find('\t') != std::string_view::npos) {
+    return " (the header holds tabs: the separator must be a comma)";
+  }
+  return "";
+}
+
+std::string excerpt(std::string_view text, std::size_t max_chars) {
+  bool cut = false;
+  if (text.size() > max_chars) {
+    std::size_t end = max_chars;
+    // Back up to the first byte of a UTF-8 sequence.
+    while (end > 0 && (static_cast<unsigned char>(text[end]) & 0xC0) == 0x80) --end;
+    text = text.substr(0, end);
+    cut = true;
+  }
+  std::string out;
+  out.reserve(text.size() + 4);
+  for (char ch : text) {
+    const auto c = static_cast<unsigned char>(ch);
+    if (c == 0) {
+      out += "\\0";
+    } else if (c < 0x20 && c != '\t') {
+      char buf[8];
+      std::snprintf(buf, sizeof buf, "\\x%02X", c);
+      out += buf;
+    } else {
+      out.push_back(ch);
+    }
+  }
+  if (cut) out += "\xE2\x80\xA6";  // U+2026 HORIZONTAL ELLIPSIS in UTF-8
+  return out;
+}
+
 bool parse_double(std::string_view text, double& value) {
   const std::string s(text);
   if (s.empty()) return false;
@@ -81,6 +160,10 @@ bool parse_double(std::string_view text, double& value) {
 }
 
 std::string read_text_file(const std::string& path, const std::string& display_name) {
+  std::error_code ec;
+  if (std::filesystem::is_directory(path, ec)) {
+    throw InputError(display_name, "the path is a folder", "a file");
+  }
   std::ifstream in(path, std::ios::binary);
   if (!in) {
     throw InputError(display_name, "the file cannot be opened", "a readable file");

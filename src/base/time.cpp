@@ -318,7 +318,7 @@ UtcSeconds parse_iso8601(std::string_view text, const TimeZone* zone_for_naive,
   const std::string expected =
       "an ISO 8601 time such as 2026-01-05T13:00:00Z or 2026-01-05T14:00+01:00";
   const auto bad = [&](const std::string& why) {
-    return InputError(std::string(where), "time \"" + std::string(text) + "\" " + why, expected);
+    return InputError(std::string(where), "time \"" + excerpt(text) + "\" " + why, expected);
   };
   std::string_view s = text;
   while (!s.empty() && s.front() == ' ') s.remove_prefix(1);

@@ -125,7 +125,8 @@ struct Column {
 
 MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
                         const std::string& display_name) {
-  Lines lines(text);
+  refuse_cr_only_lines(text, display_name);
+  Lines lines(strip_utf8_bom(text));
   std::string_view header_line;
   int header_no = 0;
   bool have_header = false;
@@ -140,8 +141,8 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
                      "a header row such as \"time,mixing_height [m],wind_speed [m/s],wind_from "
                      "[deg]\" and hourly rows");
   }
-  const std::vector<std::string> headers = split_csv_row(std::string(header_line));
   const std::string header_where = display_name + ":" + std::to_string(header_no);
+  const std::vector<std::string> headers = split_csv_row(std::string(header_line), header_where);
   std::vector<Column> cols;
   int time_col = -1;
   for (std::size_t c = 0; c < headers.size(); ++c) {
@@ -149,10 +150,10 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
     col.header = trim(headers[c]);
     split_header(col.header, col.name, col.unit);
     col.role = role_of(col.name);
-    const std::string where = header_where + ": column \"" + col.header + "\"";
+    const std::string where = header_where + ": column \"" + excerpt(col.header) + "\"";
     for (const auto& other : cols) {
       if (other.name == col.name) {
-        throw InputError(where, "a second column named \"" + col.name + "\"",
+        throw InputError(where, "a second column named \"" + excerpt(col.name) + "\"",
                          "each column name once");
       }
     }
@@ -191,8 +192,10 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
   };
   std::string found;
   for (const auto& c : cols) found += (found.empty() ? "" : ", ") + c.header;
+  found = excerpt(found);
   if (time_col < 0) {
-    throw InputError(header_where, "no \"time\" column (found: " + found + ")",
+    throw InputError(header_where,
+                     "no \"time\" column (found: " + found + ")" + separator_hint(header_line),
                      "a column named time holding ISO 8601 times");
   }
   if (!has(Role::mixing_height)) {
@@ -235,7 +238,7 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
     };
     cells.clear();
     if (line.find('"') != std::string_view::npos) {
-      quoted = split_csv_row(std::string(line));
+      quoted = split_csv_row(std::string(line), where());
       for (const auto& q : quoted) cells.emplace_back(q);
     } else {
       std::size_t start = 0;
@@ -312,7 +315,7 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
       if (!cell_view.empty()) {
         if (!parse_cell(cell_view, value)) {
           throw InputError(where() + ": column \"" + col.header + "\"",
-                           "\"" + cell() + "\" is not a number",
+                           "\"" + excerpt(cell_view) + "\" is not a number",
                            "a decimal number, or an empty cell for a missing value");
         }
         if (col.role != Role::extra) value = col.to_si(value);

@@ -43,6 +43,9 @@ File::File(const std::string& path, const std::string& shown_as)
   if (!std::filesystem::exists(path, ec)) {
     throw InputError(path_, "no such file", "an existing NetCDF file");
   }
+  if (std::filesystem::is_directory(path, ec)) {
+    throw InputError(path_, "the path is a folder", "a NetCDF file");
+  }
   const int st = nc_open(path.c_str(), NC_NOWRITE, &id_);
   if (st != NC_NOERR) {
     id_ = -1;

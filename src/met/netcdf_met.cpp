@@ -214,6 +214,22 @@ MetColumns load_met_columns(const File& f, const NetcdfMetOptions& opt, const Va
   return mc;
 }
 
+// A variable whose every value is missing would reach the gap rule as "missing values at the
+// start of the series", naming no variable.
+void refuse_all_missing(const File& f, const std::vector<Loaded>& loaded) {
+  for (const Loaded& l : loaded) {
+    bool any = false;
+    for (const auto& cell : l.values.cells) {
+      for (double x : cell) any = any || !std::isnan(x);
+    }
+    if (!any) {
+      throw InputError(f.where(*l.var),
+                       "every value is missing (_FillValue, missing_value or outside valid_range)",
+                       "valid values in the cells and hours read");
+    }
+  }
+}
+
 void check_one_time_axis(const File& f, const std::vector<Loaded>& loaded) {
   for (std::size_t i = 1; i < loaded.size(); ++i) {
     if (loaded[0].axis.t != loaded[i].axis.t) {
@@ -322,6 +338,7 @@ MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
   const Var* mapped_time = netcdf::mapped_time_variable(f, opt);
   const MetVariables mv = netcdf::find_met_variables(f, opt);
   MetColumns mc = load_met_columns(f, opt, mapped_time, mv);
+  refuse_all_missing(f, mc.loaded);
   check_one_time_axis(f, mc.loaded);
   Hourly hr = to_hourly(f, mc.loaded[0].axis, mc.cols, opt.sub_hourly, opt.coarse);
   MetSeries m = met_series(f, mc, hr);

@@ -139,8 +139,21 @@ void draw_band(svg::Writer& w, const TimeCanvas& t, const Panel& p, const std::v
 
 void draw_area(svg::Writer& w, const TimeCanvas& t, const Panel& p, const std::vector<double>& v,
                std::string_view style) {
-  const std::vector<double> base(v.size(), std::max(0.0, p.axis.lo));
-  draw_band(w, t, p, base, v, style);
+  // One closed piece per run of finite values: its top edge and two corners on the base.
+  const double base = p.y_of(std::max(0.0, p.axis.lo));
+  w.path_begin();
+  std::size_t k = 0;
+  while (k < v.size()) {
+    if (!std::isfinite(v[k])) {
+      ++k;
+      continue;
+    }
+    w.move_to(t.x_of_bin(k), base);
+    for (; k < v.size() && std::isfinite(v[k]); ++k) w.line_to(t.x_of_bin(k), p.y_of(v[k]));
+    w.line_to(t.x_of_bin(k - 1), base);
+    w.close_path();
+  }
+  w.path_end(style);
 }
 
 void draw_series(svg::Writer& w, const TimeCanvas& t, const Panel& p, const BinStats& s,
@@ -159,31 +172,67 @@ void draw_mark(svg::Writer& w, const TimeCanvas& t, const Panel& p, double hour,
                std::string_view label) {
   const double x = t.x_of(hour);
   w.line(x, p.y, x, p.y + p.h, "stroke=\"#333\" stroke-width=\"1.5\" stroke-dasharray=\"2,3\"");
+  if (label.empty()) return;
   const bool right_half = x > kLeft + 0.6 * kPlotWidth;
   w.text(right_half ? x - 4 : x + 4, p.y + p.h - 6, label,
          right_half ? "text-anchor=\"end\" font-size=\"11\"" : "font-size=\"11\"");
 }
 
+namespace {
+struct Box {
+  double left, right, top, bottom;
+  [[nodiscard]] bool hits(const Box& o) const {
+    return left < o.right && o.left < right && top < o.bottom && o.top < bottom;
+  }
+};
+
+// Where a level's label goes: right-aligned at the plot's right end just above its line, else
+// just below it, else further left beside the labels in the way, so that labels of close levels
+// sit side by side rather than on top of each other.
+Box place_label(const Panel& p, double y, double width, const std::vector<Box>& placed) {
+  const double right_end = kLeft + kPlotWidth - 4;
+  const auto box_at = [&](double right, double baseline) {
+    return Box{right - width, right, baseline - 9, baseline + 2};
+  };
+  const auto clear = [&](const Box& b) {
+    return b.top >= p.y && b.bottom <= p.y + p.h &&
+           std::none_of(placed.begin(), placed.end(), [&](const Box& o) { return b.hits(o); });
+  };
+  for (double right = right_end; right - width > kLeft + 4;) {
+    for (const double baseline : {y - 3, y + 12}) {
+      if (clear(box_at(right, baseline))) return box_at(right, baseline);
+    }
+    double next = right;
+    for (const auto& o : placed) {
+      if (o.right > right - width && o.left < right) next = std::min(next, o.left - 12);
+    }
+    if (next >= right) break;
+    right = next;
+  }
+  return box_at(right_end, y - 3);  // nowhere free: above the line, over the others
+}
+}  // namespace
+
 void draw_levels(svg::Writer& w, const Panel& p, std::vector<Level> levels) {
   std::sort(levels.begin(), levels.end(),
             [](const Level& a, const Level& b) { return a.value < b.value; });
-  double last_label_y = 1e300;
+  std::vector<Box> placed;
   for (const auto& l : levels) {
     const double y = p.y_of(l.value);
     w.line(kLeft, y, kLeft + kPlotWidth, y, l.style);
-    // Labels go above their line, and climb when the previous (lower) label is too close.
-    double ly = std::min(y - 3, last_label_y - 13);
-    if (ly < p.y + 10) ly = y + 12;
-    w.text(kLeft + kPlotWidth - 4, ly, l.label,
+  }
+  for (const auto& l : levels) {
+    const Box b = place_label(p, p.y_of(l.value), label_width_px(l.label.size(), 11.0), placed);
+    placed.push_back(b);
+    w.text(b.right, b.bottom - 2, l.label,
            "text-anchor=\"end\" font-size=\"11\" fill=\"" + std::string(kPaletteLevel) +
                "\" stroke=\"white\" stroke-width=\"3\" paint-order=\"stroke\"");
-    last_label_y = ly;
   }
 }
 
-void draw_legend(svg::Writer& w, double y, const std::vector<LegendItem>& items) {
-  double x = kLeft;
+void draw_legend(svg::Writer& w, double y, const std::vector<LegendItem>& items, double x) {
   for (const auto& it : items) {
+    if (it.text.empty()) continue;
     const std::string& s = it.swatch;
     if (s == "none") {
       w.text(x, y, it.text, "font-size=\"11.5\" font-weight=\"bold\"");

@@ -58,7 +58,8 @@ void draw_area(svg::Writer& w, const TimeCanvas& t, const Panel& p, const std::v
 // Band between two per-bin series.
 void draw_band(svg::Writer& w, const TimeCanvas& t, const Panel& p, const std::vector<double>& lo,
                const std::vector<double>& hi, std::string_view style);
-// A shaded span of hours [from, to) and a vertical mark at an hour, with a label at the top.
+// A shaded span of hours [from, to), and a vertical mark at an hour with its label (if any) near
+// the bottom.
 void draw_span(svg::Writer& w, const TimeCanvas& t, const Panel& p, double from_hour,
                double to_hour, std::string_view style);
 void draw_mark(svg::Writer& w, const TimeCanvas& t, const Panel& p, double hour,
@@ -78,7 +79,7 @@ struct LegendItem {
   std::string swatch;
   std::string text;
 };
-void draw_legend(svg::Writer& w, double y, const std::vector<LegendItem>& items);
+void draw_legend(svg::Writer& w, double y, const std::vector<LegendItem>& items, double x = kLeft);
 // Title, caution and the time axis's name; returns the y where the first panel may start.
 double draw_header(svg::Writer& w, std::string_view title, const TimeCanvas& t);
 // The highest finite value of the series given.

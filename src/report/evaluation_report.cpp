@@ -494,25 +494,8 @@ std::string summary_text(const EvaluationReportInput& in) {
 
 // ---- charts ----------------------------------------------------------------------------------
 
-void caution_lines(std::ostringstream& o, int x, double y, std::size_t chars = 140) {
-  std::string line, word;
-  std::istringstream words(kScreeningCaution);
-  while (words >> word) {
-    if (line.size() + word.size() > chars) {
-      o << "<text x=\"" << x << "\" y=\"" << y << "\" font-size=\"11\" fill=\"#555\">" << line
-        << "</text>\n";
-      line.clear();
-      y += 13.0;
-    }
-    line += (line.empty() ? "" : " ") + word;
-  }
-  o << "<text x=\"" << x << "\" y=\"" << y << "\" font-size=\"11\" fill=\"#555\">" << line
-    << "</text>\n";
-}
-
-}  // namespace
-
-std::string render_evaluation_timeseries_svg(const EvaluationReportInput& in) {
+// The charts' input: per monitor the model, the monitor and the fit on the run's hours.
+MonitorChartInput chart_input(const EvaluationReportInput& in) {
   MonitorChartInput chart;
   chart.c = in.c;
   chart.hours = in.hours;
@@ -523,81 +506,17 @@ std::string render_evaluation_timeseries_svg(const EvaluationReportInput& in) {
     if (in.after) s.fitted = in.fitted[k];
     chart.series.push_back(std::move(s));
   }
-  return render_monitor_chart_svg(chart);
+  return chart;
+}
+
+}  // namespace
+
+std::string render_evaluation_timeseries_svg(const EvaluationReportInput& in) {
+  return render_monitor_chart_svg(chart_input(in));
 }
 
 std::string render_evaluation_scatter_svg(const EvaluationReportInput& in) {
-  const int side = 380, pad = 70, gap = 40, top = 90;
-  const int panels = static_cast<int>(in.monitors.size());
-  const int cols = std::min(panels, 2);
-  const int rows = (panels + cols - 1) / cols;
-  const int W = std::max(760, pad + cols * (side + gap + pad));
-  const int H = top + rows * (side + gap + 40) + 20;
-  std::ostringstream o;
-  o << "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"" << W << "\" height=\"" << H
-    << "\" font-family=\"sans-serif\" font-size=\"12\">\n<rect width=\"100%\" height=\"100%\" "
-       "fill=\"white\"/>\n"
-    << "<text x=\"" << pad << "\" y=\"22\" font-size=\"15\" font-weight=\"bold\">" << in.c->name
-    << ": modelled against observed hour means; model (blue)"
-    << (in.after ? ", after the fit (orange)" : "") << "; lines 1:1, 2:1 and 1:2</text>\n";
-  caution_lines(o, pad, 40.0, static_cast<std::size_t>((W - pad) / 6.6));
-  for (int k = 0; k < panels; ++k) {
-    const auto& m = in.monitors[static_cast<std::size_t>(k)];
-    const auto& model = in.modelled[static_cast<std::size_t>(k)];
-    const int x0 = pad + (k % cols) * (side + gap + pad);
-    const int y0 = top + (k / cols) * (side + gap + 40);
-    double vmax = 0.0, vmin = 0.0;
-    for (std::size_t i = 0; i < model.size(); ++i) {
-      if (std::isnan(m.observed[i])) continue;
-      vmax = std::max({vmax, m.observed[i], model[i]});
-      vmin = std::min(vmin, m.observed[i]);
-      if (in.after) vmax = std::max(vmax, in.fitted[static_cast<std::size_t>(k)][i]);
-    }
-    const NiceAxis ax = nice_axis(vmin, vmax);
-    vmin = ax.lo;
-    vmax = ax.hi;
-    auto X = [&](double v) { return x0 + side * (v - vmin) / (vmax - vmin); };
-    auto Y = [&](double v) { return y0 + side - side * (v - vmin) / (vmax - vmin); };
-    o << "<rect x=\"" << x0 << "\" y=\"" << y0 << "\" width=\"" << side << "\" height=\"" << side
-      << "\" fill=\"none\" stroke=\"#333\"/>\n";
-    for (double v = vmin; v <= vmax + 0.5 * ax.step; v += ax.step) {
-      o << "<text x=\"" << x0 - 6 << "\" y=\"" << Y(v) + 4 << "\" text-anchor=\"end\">"
-        << format_number(v, 4) << "</text><text x=\"" << X(v) << "\" y=\"" << y0 + side + 16
-        << "\" text-anchor=\"middle\">" << format_number(v, 4) << "</text>\n";
-    }
-    // 1:1 and factor-of-two lines, clipped to the square.
-    auto line = [&](double slope, const char* dash) {
-      const double hi = vmax / std::max(1.0, slope);
-      o << "<line x1=\"" << X(0) << "\" y1=\"" << Y(0) << "\" x2=\"" << X(hi) << "\" y2=\""
-        << Y(hi * slope) << "\" stroke=\"#888\""
-        << (dash[0] ? std::string(" stroke-dasharray=\"") + dash + "\"" : std::string()) << "/>\n";
-    };
-    line(1.0, "");
-    line(2.0, "4,3");
-    line(0.5, "4,3");
-    for (std::size_t i = 0; i < model.size(); ++i) {
-      if (std::isnan(m.observed[i])) continue;
-      o << "<circle cx=\"" << X(m.observed[i]) << "\" cy=\"" << Y(model[i])
-        << "\" r=\"1.8\" fill=\"#2d7dd2\" "
-        << "fill-opacity=\"0.5\"/>\n";
-    }
-    if (in.after) {
-      for (std::size_t i = 0; i < model.size(); ++i) {
-        if (std::isnan(m.observed[i])) continue;
-        o << "<circle cx=\"" << X(m.observed[i]) << "\" cy=\""
-          << Y(in.fitted[static_cast<std::size_t>(k)][i])
-          << "\" r=\"1.8\" fill=\"#f2a541\" fill-opacity=\"0.5\"/>\n";
-      }
-    }
-    o << "<text x=\"" << x0 << "\" y=\"" << y0 - 8 << "\"><tspan font-weight=\"bold\">" << m.label
-      << "</tspan> " << m.pollutant << "</text>\n"
-      << "<text x=\"" << x0 + side / 2 << "\" y=\"" << y0 + side + 34
-      << "\" text-anchor=\"middle\">observed [" << m.unit << "]</text><text x=\"" << x0 - 48
-      << "\" y=\"" << y0 + side / 2 << "\" transform=\"rotate(-90 " << x0 - 48 << " "
-      << y0 + side / 2 << ")\" text-anchor=\"middle\">modelled [" << m.unit << "]</text>\n";
-  }
-  o << "</svg>\n";
-  return o.str();
+  return render_scatter_svg(chart_input(in));
 }
 
 namespace {

@@ -318,9 +318,19 @@ RunWritten run_and_write(OutputFolder& folder, const CaseSpec& c, const MetSerie
   if (options.after_run) options.after_run();
   out.standards = run_standards(c, out.result, options.issue_time);
   out.issue_time_utc = run_issue_time(c, options.issue_time);
-  out.summary =
-      write_run_outputs(folder, c, met, out.result, out.standards ? &*out.standards : nullptr,
-                        options.netcdf, options.format, options.chart);
+  const StandardsReport* standards = out.standards ? &*out.standards : nullptr;
+  out.summary = write_run_outputs(folder, c, met, out.result, standards, options.netcdf,
+                                  options.format, false);
+  // Drawn here rather than among the tables so that a command-line issue time reaches it
+  // without standards too; it costs little (tests/bench/chart.sh).
+  if (options.chart) {
+    RunChartInput in;
+    in.c = &c;
+    in.r = &out.result;
+    in.standards = standards;
+    in.issue_time_utc = out.issue_time_utc;
+    folder.write_whole("chart.svg", render_run_chart_svg(in));
+  }
   return out;
 }
 

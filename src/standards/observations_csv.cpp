@@ -18,8 +18,8 @@ namespace lidbox {
 namespace {
 
 // The met reader's CSV splitter (RFC 4180 quotes), each cell trimmed.
-std::vector<std::string> split_cells(std::string_view line) {
-  std::vector<std::string> cells = split_csv_row(std::string(line));
+std::vector<std::string> split_cells(std::string_view line, const std::string& where) {
+  std::vector<std::string> cells = split_csv_row(std::string(line), where);
   for (auto& c : cells) c = std::string(trim(c));
   return cells;
 }
@@ -33,7 +33,7 @@ struct Column {
 std::vector<Column> read_header(const std::vector<std::string>& cells, std::string_view line,
                                 const std::string& where) {
   if (cells.size() < 2 || !(cells[0] == "time" || cells[0] == "Time")) {
-    throw InputError(where, "header \"" + std::string(line) + "\"",
+    throw InputError(where, "header \"" + excerpt(line) + "\"" + separator_hint(line),
                      "\"time\" followed by columns like \"PM2.5 [ug/m3]\"");
   }
   std::vector<Column> columns;
@@ -44,12 +44,12 @@ std::vector<Column> read_header(const std::vector<std::string>& cells, std::stri
     if (open == std::string_view::npos || close == std::string_view::npos || close < open ||
         close + 1 != cell.size()) {
       throw InputError(where + ": column " + std::to_string(c + 1),
-                       "header \"" + std::string(cell) + "\" has no unit",
+                       "header \"" + excerpt(cell) + "\" has no unit",
                        "\"<pollutant> [<unit>]\", e.g. \"PM2.5 [ug/m3]\"");
     }
     const std::string name(trim(cell.substr(0, open)));
     const std::string unit_text(trim(cell.substr(open + 1, close - open - 1)));
-    const std::string col_where = where + ": column \"" + std::string(cell) + "\"";
+    const std::string col_where = where + ": column \"" + excerpt(cell) + "\"";
     const PollutantInfo& p = pollutant_or_throw(name, col_where);
     const auto unit =
         parse_concentration_unit(unit_text, p.molar_mass_g_mol, kUsReferenceConditions, col_where);
@@ -114,7 +114,7 @@ void read_values(Rows& rows, const std::vector<std::string>& cells, std::size_t 
       if (!parse_double(trim(cell.substr(1)), limit) || limit < 0.0) {
         throw InputError(
             where + ": column \"" + rows.columns[c].pollutant + " [" + rows.columns[c].unit + "]\"",
-            "value \"" + std::string(cell) + "\"", "a detection limit \"<L\" with a number L >= 0");
+            "value \"" + excerpt(cell) + "\"", "a detection limit \"<L\" with a number L >= 0");
       }
       std::vector<double>& dl = rows.detection_limits[c];
       dl.resize(index, kMissing);
@@ -127,7 +127,7 @@ void read_values(Rows& rows, const std::vector<std::string>& cells, std::size_t 
     if (ec != std::errc() || end != cell.data() + cell.size() || !std::isfinite(x)) {
       throw InputError(
           where + ": column \"" + rows.columns[c].pollutant + " [" + rows.columns[c].unit + "]\"",
-          "value \"" + std::string(cell) + "\"", "a number, or an empty cell for a missing value");
+          "value \"" + excerpt(cell) + "\"", "a number, or an empty cell for a missing value");
     }
     v.push_back(x);
   }
@@ -161,7 +161,8 @@ UtcSeconds parse_instant_with_offset(std::string_view text, std::string_view whe
 
 Observations parse_observations_csv(std::string_view text, std::string_view path_view) {
   const std::string path(path_view);
-  if (text.size() >= 3 && text.substr(0, 3) == "\xEF\xBB\xBF") text.remove_prefix(3);
+  refuse_cr_only_lines(text, path);
+  text = strip_utf8_bom(text);
   std::optional<Rows> rows;  // set by the header line
   std::size_t line_no = 0;
   for (std::size_t pos = 0; pos <= text.size();) {
@@ -172,7 +173,7 @@ Observations parse_observations_csv(std::string_view text, std::string_view path
     ++line_no;
     if (line.empty() || line.front() == '#') continue;
     const std::string where = path + ":" + std::to_string(line_no);
-    const auto cells = split_cells(line);
+    const auto cells = split_cells(line, where);
     if (rows) {
       read_row(*rows, cells, line_no, where);
     } else {
@@ -199,11 +200,7 @@ Observations parse_observations_csv(std::string_view text, std::string_view path
 }
 
 Observations read_observations_csv(const std::filesystem::path& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError(path.string(), "cannot be read", "a readable observations CSV file");
-  std::ostringstream text;
-  text << in.rdbuf();
-  return parse_observations_csv(text.str(), path.string());
+  return parse_observations_csv(read_text_file(path.string(), path.string()), path.string());
 }
 
 }  // namespace lidbox

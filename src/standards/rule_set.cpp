@@ -423,11 +423,7 @@ RuleSet parse_rule_set(std::string_view toml_text, std::string_view path) {
 }
 
 RuleSet load_rule_set_file(const std::filesystem::path& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError(path.string(), "cannot be read", "a readable rule-set TOML file");
-  std::ostringstream text;
-  text << in.rdbuf();
-  return parse_rule_set(text.str(), path.string());
+  return parse_rule_set(read_text_file(path.string(), path.string()), path.string());
 }
 
 std::filesystem::path rules_directory(const std::optional<std::filesystem::path>& explicit_dir) {

@@ -104,6 +104,11 @@ TEST_CASE("case-file mistakes are named with file, line and key") {
                 "[met]\nfile = \"met.csv\"\n[model]\nspin_up_max_days = 4294967297") ==
         "case.toml:11: [model] spin_up_max_days: 4294967297; expected a whole number from 1 to "
         "2147483647");
+  // The same for the sub-step cap (toml_table reads TOML's 64-bit integers before narrowing).
+  CHECK(message("[met]\nfile = \"met.csv\"",
+                "[met]\nfile = \"met.csv\"\n[model]\nmax_substeps_per_hour = 4294967297") ==
+        "case.toml:11: [model] max_substeps_per_hour: 4294967297; expected a whole number from 1 "
+        "to 2147483647");
   CHECK(message("[airshed]", "[airshd]") ==
         "case.toml:4: (top level): unknown key \"airshd\"; expected one of name, title, invented, "
         "time_zone, airshed, met, model, pollutants, sectors, standards, diagnostics, grid, output, "

@@ -26,8 +26,8 @@ header = open(os.path.join(SOURCE, "include", "lidbox", "report", "chart.hpp")).
 stack = re.findall(r'"(#[0-9a-f]{6})"', header[header.index("kPaletteStack[]"):header.index("};")])
 named = dict(re.findall(r'kPalette(\w+) = "(#[0-9a-f]{6})"', header))
 # Lines drawn together on a concentration panel (run, ensemble median, monitor, fit, levels)
-# and on the lid-and-wind panel (residual-layer top, wind).
-LINE_GROUPS = [["Line", "Median", "Monitor", "Fit", "Level"], ["Residual", "Wind"]]
+# on the lid-and-wind panel (residual-layer top, wind), and in the scatter (model, after a fit).
+LINE_GROUPS = [["Line", "Median", "Monitor", "Fit", "Level"], ["Residual", "Wind"], ["Median", "Amber"]]
 
 MACHADO = {
     "protanopia": [[0.152286, 1.052583, -0.204868], [0.114503, 0.786281, 0.099216],

@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "lidbox/report/chart.hpp"
+#include "report/svg_writer.hpp"
 
 using namespace lidbox;
 
@@ -190,4 +191,15 @@ TEST_CASE("the zone is named by its abbreviations or its name, not by its rule")
   CHECK(zone_display_name(TimeZone::parse("+01:00", "t")) == "UTC+01:00");
   CHECK(zone_display_name(TimeZone::parse("UTC", "t")) == "UTC");
   CHECK(zone_display_name(TimeZone::parse("Europe/Paris", "t")) == "Europe/Paris");
+}
+
+TEST_CASE("the SVG writer prints tenths without a trailing zero and escapes text") {
+  // Closed form: round half away from zero to a tenth (std::llround).
+  svg::Writer w(10, 10, 12.0);
+  w.raw("[").num(12.34).raw(" ").num(12.0).raw(" ").num(-3.05).raw(" ").num(-0.04).raw("]");
+  w.text(1, 2, "a<b & \"c\"", "");
+  const std::string s = w.finish();
+  CHECK(s.find("[12.3 12 -3.1 0]") != std::string::npos);
+  CHECK(s.find("<text x=\"1\" y=\"2\">a&lt;b &amp; &quot;c&quot;</text>") != std::string::npos);
+  CHECK(s.rfind("</svg>\n") == s.size() - 7);
 }

@@ -13,9 +13,18 @@
 
 namespace lidbox {
 
+// A NUL byte (from a binary file quoted in a message) would end what() early: it is written
+// as \0 instead.
+inline std::string without_nul(std::string message) {
+  for (std::size_t i = message.find('\0'); i != std::string::npos; i = message.find('\0', i)) {
+    message.replace(i, 1, "\\0");
+  }
+  return message;
+}
+
 class Error : public std::runtime_error {
  public:
-  using std::runtime_error::runtime_error;
+  explicit Error(const std::string& message) : std::runtime_error(without_nul(message)) {}
 };
 
 class InputError : public Error {

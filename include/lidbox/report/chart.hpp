@@ -49,6 +49,7 @@ inline constexpr const char* kPaletteEpisode = "#f4d58d";   // episode shading
 inline constexpr const char* kPaletteLid = "#a9cbe0";       // mixing height fill
 inline constexpr const char* kPaletteResidual = "#1f4e79";  // residual-layer top
 inline constexpr const char* kPaletteWind = "#b5542b";      // wind speed
+inline constexpr const char* kPaletteAmber = "#e9a93b";     // scatter: after a fit
 
 // ---- the time axis -----------------------------------------------------------------------
 
@@ -139,5 +140,8 @@ struct MonitorChartInput {
 
 // One concentration panel per monitor and pollutant: the model, the monitor overlaid, the fit.
 std::string render_monitor_chart_svg(const MonitorChartInput& in);
+// Modelled (and fitted) against observed hour means, one square per monitor and pollutant, with
+// the 1:1 line and the factor-of-two lines.
+std::string render_scatter_svg(const MonitorChartInput& in);
 
 }  // namespace lidbox
