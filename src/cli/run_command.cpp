@@ -12,6 +12,8 @@
 #include "lidbox/engine/case_file.hpp"
 #include "lidbox/engine/run.hpp"
 #include "lidbox/report/chart.hpp"
+#include "lidbox/report/bulletin.hpp"
+#include "lidbox/report/chart.hpp"
 #include "lidbox/report/cut_report.hpp"
 #include "lidbox/report/diagnostics_report.hpp"
 #include "lidbox/report/ensemble_report.hpp"
@@ -58,6 +60,8 @@ void add_run_command(CLI::App& app, int& exit_code) {
                        "a point case for `lidbox run`; run a grid case with `lidbox grid`");
     }
     const MetSeries met = read_case_met(c);
+    // Read before the run, so that a bad wording file stops it at once and writes nothing.
+    const BulletinTemplates templates = load_bulletin_templates(c.bulletin_templates);
     // The output folder is checked and its temporary made before the run, so a bad place
     // fails at once rather than after a long run.
     OutputFolder out(opt->output_dir.empty() ? c.output_directory : opt->output_dir);
@@ -83,20 +87,33 @@ void add_run_command(CLI::App& app, int& exit_code) {
       progress.finish();
       append_section(files, "summary.txt", render_ensemble_summary(c, *ens));
       for (auto& f : render_ensemble_outputs(c, *ens)) files.push_back(std::move(f));
-      RunChartInput chart;
-      chart.c = &c;
-      chart.r = &w.result;
-      chart.standards = w.standards ? &*w.standards : nullptr;
-      chart.ensemble = &ens->percentiles;
-      chart.issue_time_utc = w.issue_time_utc;
-      files.push_back({"chart.svg", render_run_chart_svg(chart)});
     }
+    std::optional<EmissionCut> cut;
     if (c.cut) {
-      const EmissionCut cut =
-          compute_emission_cut(c, met, ens ? ens->member_met : std::vector<MetSeries>{}, rule_sets);
-      append_section(files, "summary.txt", render_cut_summary(c, cut));
-      files.push_back({"cut.csv", render_cut_csv(c, cut)});
+      cut = compute_emission_cut(c, met, ens ? ens->member_met : std::vector<MetSeries>{}, rule_sets);
+      append_section(files, "summary.txt", render_cut_summary(c, *cut));
+      files.push_back({"cut.csv", render_cut_csv(c, *cut)});
     }
+    RunChartInput chart;
+    chart.c = &c;
+    chart.r = &w.result;
+    chart.standards = w.standards ? &*w.standards : nullptr;
+    chart.ensemble = ens ? &ens->percentiles : nullptr;
+    chart.issue_time_utc = w.issue_time_utc;
+    BulletinInput b;
+    b.c = &c;
+    b.r = &w.result;
+    b.standards = chart.standards;
+    b.ensemble = ens ? &*ens : nullptr;
+    b.cut = cut ? &*cut : nullptr;
+    b.days = &days;
+    b.diagnostics = &diag;
+    b.issue_time_utc = w.issue_time_utc;
+    // The same chart as chart.svg; with an ensemble, chart.svg is this one (with the band).
+    b.chart_svg = render_run_chart_svg(chart);
+    if (ens) files.push_back({"chart.svg", b.chart_svg});
+    b.templates = &templates;
+    for (auto& f : render_bulletin(b)) files.push_back(std::move(f));
     for (const auto& f : files) out.write_whole(f.name, f.content);
     const auto written = out.publish();
     if (!opt->quiet) {

@@ -600,6 +600,18 @@ void read_output(const TomlTable& top, CaseSpec& c) {
   c.netcdf_output = r->optional_bool("netcdf").value_or(false);
 }
 
+void read_bulletin(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
+  const auto r = top.optional_table("bulletin", {"templates", "area"});
+  if (!r) return;
+  if (auto t = r->optional_string("templates")) {
+    const std::filesystem::path p(*t);
+    c.bulletin_templates = p.extension() == ".toml" && p.is_relative()
+                               ? (std::filesystem::path(base_dir) / p).string()
+                               : *t;
+  }
+  c.bulletin_area = r->optional_string("area").value_or("");
+}
+
 // [scenario], [ensemble] and [cut]: their readers live with their concepts.
 void read_forecast_tables(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
   std::vector<std::string> sectors;
@@ -617,7 +629,7 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   const TomlDocument doc(text, file);
   const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
                             "pollutants", "sectors", "standards", "diagnostics", "grid", "output",
-                            "scenario", "ensemble", "cut"});
+                            "scenario", "ensemble", "cut", "bulletin"});
   CaseSpec c;
   c.file = file;
   read_top_level(top, c);
@@ -630,6 +642,7 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   read_diagnostics(top, base_dir, c);
   if (top.has("grid")) c.grid_table = top.where("grid");  // the grid room reads it (grid_case.hpp)
   read_output(top, c);
+  read_bulletin(top, base_dir, c);
   read_forecast_tables(top, base_dir, c);
   return c;
 }

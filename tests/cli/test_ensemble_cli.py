@@ -163,17 +163,17 @@ def test_bad_inputs():
 
     expect_error(
         "a cut start outside the run",
-        "case.toml:71: [cut] start: 2026-02-20T01:00:00Z, outside the run; expected the start of an hour from "
+        "case.toml:72: [cut] start: 2026-02-20T01:00:00Z, outside the run; expected the start of an hour from "
         "2026-02-09T07:00:00Z to 2026-02-14T06:00:00Z",
         lambda t: t.replace('start = "2026-02-10T18:00:00-07:00"', 'start = "2026-02-19T18:00:00-07:00"'))
     expect_error(
         "a sector that does not exist",
-        "case.toml:70: [cut] sectors: no sector \"home_heatng\" (did you mean \"home_heating\"?); expected one "
+        "case.toml:71: [cut] sectors: no sector \"home_heatng\" (did you mean \"home_heating\"?); expected one "
         "of the case's sectors: traffic, home_heating, industry",
         lambda t: t.replace('sectors = ["home_heating"]', 'sectors = ["home_heatng"]'))
     expect_error(
         "a member count the ensemble cannot have",
-        "case.toml:72: [cut] target: at most 12 of 12 members, which every scale meets; expected a count from 0 to 11",
+        "case.toml:73: [cut] target: at most 12 of 12 members, which every scale meets; expected a count from 0 to 11",
         lambda t: t.replace("target = { at_most_members = 1 }", "target = { at_most_members = 12 }"))
 
 

@@ -173,6 +173,9 @@ def test_installed_run(prefix, tmp):
     os.makedirs(os.path.join(own_data, "rules"))
     shutil.copy(os.path.join(prefix, "share", "lidbox", "rules", "eu-2008-50.toml"),
                 os.path.join(own_data, "rules"))
+    # The bulletin's wording is data too (read before the run): the folder holds it as well.
+    shutil.copytree(os.path.join(prefix, "share", "lidbox", "bulletin"),
+                    os.path.join(own_data, "bulletin"))
     # The installed binary reads the data of its own version, whatever LIDBOX_DATA_DIR says.
     refused(dict(clean_env(), LIDBOX_DATA_DIR=own_data),
             'rule set "who-2099": not found in %s; expected one of eu-2008-50, eu-2024-2881, '
@@ -187,7 +190,7 @@ def test_installed_run(prefix, tmp):
             "LIDBOX_DATA_DIR takes the place of the source tree's data", build_binary)
     refused(dict(clean_env(), LIDBOX_DATA_DIR=os.path.join(tmp, "nowhere")),
             'LIDBOX_DATA_DIR: "%s" is not a folder; expected a folder holding lidbox\'s data '
-            '(rules/ and the like), or the variable unset' % os.path.join(tmp, "nowhere"),
+            '(bulletin/ and the like), or the variable unset' % os.path.join(tmp, "nowhere"),
             "LIDBOX_DATA_DIR naming no folder is refused", build_binary)
 
 def main():

@@ -118,6 +118,11 @@ struct CaseSpec {
   std::optional<StandardsSpec> standards;  // absent: no standards tables
   DiagnosticsSpec diagnostics;
   std::string output_directory;         // default outputs/<name>
+  // [bulletin] templates: the wording of bulletin.html/.md/.txt, an id of src/data/bulletin or a
+  // path resolved against the case (report/bulletin.hpp); area: the place the bulletin names
+  // (default: the title).
+  std::string bulletin_templates = "en";
+  std::string bulletin_area;
   bool netcdf_output = false;           // also write hourly.nc, budget.nc, daily.nc
   bool invented = false;                // the case says its scenario is invented
   std::optional<EmissionScenario> scenario;  // [scenario]: sectors scaled from a start time
