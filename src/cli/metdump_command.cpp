@@ -142,7 +142,6 @@ void add_met_dump_command(CLI::App& app, int& exit_code) {
   auto args = std::make_shared<MetDumpArgs>();
   CLI::App* sub = app.add_subcommand(
       "met-dump", "Show the hourly met (or concentrations) lidbox reads from a NetCDF file");
-  sub->group("");  // diagnostic: kept out of the main help
   sub->add_option("file", args->input, "CF-NetCDF input file")->required();
   add_netcdf_options(*sub, args->nc);
   sub->add_flag("--concentrations", args->concentrations,

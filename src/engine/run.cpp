@@ -74,16 +74,18 @@ MetSeries read_case_met(const CaseSpec& c) {
       if (p.background.kind == BackgroundSpec::Kind::column) o.extra[p.background.column] = p.background.column;
     }
     for (const auto& [field, variable] : c.diagnostics.fields) o.extra[field] = variable;
+    o.limits = c.plausibility;
     MetSeries met = read_met_netcdf(c.met.path, o);
     fill_gaps(met, c.met.max_gap_hours);
-    validate_met(met);
+    validate_met(met, c.plausibility);
     return met;
   }
   CsvMetOptions o;
   o.zone_for_naive_times = &c.zone;
   o.max_gap_hours = c.met.max_gap_hours;
+  o.limits = &c.plausibility;
   MetSeries met = read_met_csv(c.met.path, o, c.met.display_name);
-  validate_met(met);
+  validate_met(met, c.plausibility);
   return met;
 }
 

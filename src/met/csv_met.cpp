@@ -223,6 +223,8 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
     if (c.role == Role::extra) met.extra.push_back({c.name, c.unit, {}});
   }
   const double nan = std::nan("");
+  const PlausibilityLimits shipped;
+  const PlausibilityLimits& limits = options.limits ? *options.limits : shipped;
   UtcSeconds previous = 0;
   bool any = false;
   // The rows: cells are views into the file's text, the message texts are built only for an
@@ -323,19 +325,15 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
       const auto cw = [&] { return where() + ": column \"" + col.header + "\""; };
       switch (col.role) {
         case Role::mixing_height:
-          if (value < 0.0)
-            throw InputError(cw(), "negative mixing height " + cell(), "a height >= 0");
+          limits.check("mixing_height", value, cw(), cell(), col.unit);
           h = value;
           break;
         case Role::wind_speed:
-          if (value < 0.0) throw InputError(cw(), "negative wind speed " + cell(), "a speed >= 0");
+          limits.check("wind_speed", value, cw(), cell(), col.unit);
           speed = value;
           break;
         case Role::wind_from:
-          if (value < 0.0 || value > 360.0) {
-            throw InputError(cw(), "direction " + cell() + " outside 0-360 degrees",
-                             "a direction from 0 to 360 degrees clockwise from north");
-          }
+          limits.check("wind_from", value, cw(), cell(), col.unit);
           from = value;
           break;
         case Role::u:
@@ -345,12 +343,11 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
           v = value;
           break;
         case Role::temperature:
-          if (value <= 0.0)
-            throw InputError(cw(), "temperature " + cell(), "a temperature above 0 K");
+          limits.check("air_temperature", value, cw(), cell(), col.unit);
           temp = value;
           break;
         case Role::pressure:
-          if (value <= 0.0) throw InputError(cw(), "pressure " + cell(), "a pressure above 0 Pa");
+          limits.check("surface_pressure", value, cw(), cell(), col.unit);
           pres = value;
           break;
         case Role::extra:
