@@ -139,8 +139,21 @@ void draw_band(svg::Writer& w, const TimeCanvas& t, const Panel& p, const std::v
 
 void draw_area(svg::Writer& w, const TimeCanvas& t, const Panel& p, const std::vector<double>& v,
                std::string_view style) {
-  const std::vector<double> base(v.size(), std::max(0.0, p.axis.lo));
-  draw_band(w, t, p, base, v, style);
+  // One closed piece per run of finite values: its top edge and two corners on the base.
+  const double base = p.y_of(std::max(0.0, p.axis.lo));
+  w.path_begin();
+  std::size_t k = 0;
+  while (k < v.size()) {
+    if (!std::isfinite(v[k])) {
+      ++k;
+      continue;
+    }
+    w.move_to(t.x_of_bin(k), base);
+    for (; k < v.size() && std::isfinite(v[k]); ++k) w.line_to(t.x_of_bin(k), p.y_of(v[k]));
+    w.line_to(t.x_of_bin(k - 1), base);
+    w.close_path();
+  }
+  w.path_end(style);
 }
 
 void draw_series(svg::Writer& w, const TimeCanvas& t, const Panel& p, const BinStats& s,
@@ -159,6 +172,7 @@ void draw_mark(svg::Writer& w, const TimeCanvas& t, const Panel& p, double hour,
                std::string_view label) {
   const double x = t.x_of(hour);
   w.line(x, p.y, x, p.y + p.h, "stroke=\"#333\" stroke-width=\"1.5\" stroke-dasharray=\"2,3\"");
+  if (label.empty()) return;
   const bool right_half = x > kLeft + 0.6 * kPlotWidth;
   w.text(right_half ? x - 4 : x + 4, p.y + p.h - 6, label,
          right_half ? "text-anchor=\"end\" font-size=\"11\"" : "font-size=\"11\"");

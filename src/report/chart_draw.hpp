@@ -58,7 +58,8 @@ void draw_area(svg::Writer& w, const TimeCanvas& t, const Panel& p, const std::v
 // Band between two per-bin series.
 void draw_band(svg::Writer& w, const TimeCanvas& t, const Panel& p, const std::vector<double>& lo,
                const std::vector<double>& hi, std::string_view style);
-// A shaded span of hours [from, to) and a vertical mark at an hour, with a label at the top.
+// A shaded span of hours [from, to), and a vertical mark at an hour with its label (if any) near
+// the bottom.
 void draw_span(svg::Writer& w, const TimeCanvas& t, const Panel& p, double from_hour,
                double to_hour, std::string_view style);
 void draw_mark(svg::Writer& w, const TimeCanvas& t, const Panel& p, double hour,

@@ -54,7 +54,18 @@ std::size_t calm_floor_marks(svg::Writer& w, const TimeCanvas& t, const RunResul
   return n;
 }
 
-void lid_and_wind_panel(svg::Writer& w, const TimeCanvas& t, const RunResult& r, double y) {
+// The issue time as a vertical line on a panel, labelled on the concentration panels.
+void mark_issue_time(svg::Writer& w, const TimeCanvas& t, const RunChartInput& in, const Panel& p,
+                     bool labelled) {
+  if (!in.issue_time_utc) return;
+  const double h = hours_from_start(*in.r, *in.issue_time_utc);
+  if (h < 0.0 || h > static_cast<double>(in.r->hours.size())) return;
+  draw_mark(w, t, p, h,
+            labelled ? "issued " + local_stamp(*in.issue_time_utc, in.c->zone) + " local" : "");
+}
+
+void lid_and_wind_panel(svg::Writer& w, const TimeCanvas& t, const RunChartInput& in, double y) {
+  const RunResult& r = *in.r;
   const auto lid = t.stats([&](std::size_t i) { return r.hours[i].mixing_height_m; });
   const auto residual = t.stats([&](std::size_t i) { return r.hours[i].residual_top_m; });
   const auto wind = t.stats([&](std::size_t i) { return r.hours[i].wind_speed_m_s; });
@@ -80,11 +91,12 @@ void lid_and_wind_panel(svg::Writer& w, const TimeCanvas& t, const RunResult& r,
        t.hourly() ? "mixing height [m]" : "mixing height [m], mean and band to highest"},
       {"line:" + std::string(kPaletteResidual) + ":5,3", "residual-layer top [m]"},
       {"line:" + std::string(kPaletteWind) + ":", "wind speed [m/s], right axis"}};
+  mark_issue_time(w, t, in, p, false);
   const std::size_t calm = calm_floor_marks(w, t, r, p);
   if (calm > 0) {
-    legend.push_back({"fill:" + std::string(kPaletteLevel),
-                      std::to_string(calm) + " h under the calm floor" +
-                          (t.hourly() ? "" : " (hourly.csv)")});
+    legend.push_back(
+        {"fill:" + std::string(kPaletteLevel),
+         std::to_string(calm) + " h under the calm floor" + (t.hourly() ? "" : " (hourly.csv)")});
   }
   draw_legend(w, y + 13, legend);
 }
@@ -231,11 +243,7 @@ void concentration_panel(svg::Writer& w, const TimeCanvas& t, const RunChartInpu
               "fill=\"#7a7a7a\" fill-opacity=\"0.35\"");
   draw_levels_and_notes(w, pn, shown, off_scale, legend);
   if (any_episode) legend.push_back({"fill:" + std::string(kPaletteEpisode), "alert episode"});
-  if (in.issue_time_utc) {
-    const double h = hours_from_start(r, *in.issue_time_utc);
-    if (h >= 0.0 && h <= static_cast<double>(r.hours.size()))
-      draw_mark(w, t, pn, h, "issued " + local_stamp(*in.issue_time_utc, in.c->zone) + " local");
-  }
+  mark_issue_time(w, t, in, pn, true);
   draw_legend(w, y + 13, legend);
 }
 
@@ -258,14 +266,17 @@ void stack_panel(svg::Writer& w, const TimeCanvas& t, const RunChartInput& in, s
                  nice_axis(0.0, layers.empty() ? 1.0 : highest({&layers.back()}) * 1.02)};
   draw_frame(w, t, pn, ps.name + " parts [" + ps.unit.canonical + "]");
   std::vector<LegendItem> legend;
-  const std::vector<double> zero(t.bins.count(), 0.0);
+  // Each layer's cumulative area from the base, the top one first: half the points of bands.
+  for (std::size_t k = layers.size(); k-- > 0;) {
+    const char* colour = kPaletteStack[parts[k] % std::size(kPaletteStack)];
+    draw_area(w, t, pn, layers[k], "fill=\"" + std::string(colour) + "\"");
+  }
   for (std::size_t k = 0; k < layers.size(); ++k) {
     const char* colour = kPaletteStack[parts[k] % std::size(kPaletteStack)];
-    draw_band(w, t, pn, k == 0 ? zero : layers[k - 1], layers[k],
-              "fill=\"" + std::string(colour) + "\" stroke=\"white\" stroke-width=\"0.3\"");
     legend.push_back({"fill:" + std::string(colour), part_name(*in.c, parts[k])});
   }
   legend.insert(legend.begin(), {"none", "stacked by part:"});
+  mark_issue_time(w, t, in, pn, false);
   draw_legend(w, y + 13, legend);
 }
 
@@ -283,7 +294,7 @@ std::string render_run_chart_svg(const RunChartInput& in) {
   svg::Writer w(kWidth, static_cast<int>(height), kFont);
   double y = draw_header(w, in.c->name + ": " + in.c->title, t);
   y = std::max(y, header);
-  lid_and_wind_panel(w, t, *in.r, y);
+  lid_and_wind_panel(w, t, in, y);
   y += block(kLidPanel);
   for (std::size_t p = 0; p < P; ++p) {
     concentration_panel(w, t, in, p, y);

@@ -1,6 +1,7 @@
 #!/bin/bash
 # Benchmark piece for chart.svg: its size and time on the 7-day demo, the 5-day ensemble
-# forecast and invented 91-day, 10-year and 30-year cases (long_case.py), against stepping the
+# forecast, invented 91-day, 10-year and 30-year cases (long_case.py) and an invented year of 16
+# tracers and 16 sectors (wide_case.py), against stepping the
 # box and writing hourly.csv in the same process (bench_chart). Called by run.sh with
 # <build-dir> <source-dir>.
 set -euo pipefail
@@ -16,3 +17,4 @@ for years in 0.25 ${LIDBOX_BENCH_YEARS:-10 30}; do
   case=$("$py" -c "import sys; sys.path.insert(0, '$src/tests/bench'); import long_case; print(long_case.write_case('$tmp/c$years', $years))")
   "$build/bench_chart" "$case" 1
 done
+"$build/bench_chart" "$("$py" "$src/tests/bench/wide_case.py" "$tmp/wide")" 1
