@@ -201,6 +201,13 @@ kind("met: file missing", {"case.toml": CASE}, ["run", "case.toml", "-o", "OUT"]
      ["met.csv", "cannot be opened", "expected a readable file"])
 kind("met: a 1 MB line", *run_kind("x" * 1000000 + "\n", ["met.csv:1", "\u2026", "expected a column named time"]))
 
+kind("met: 500 hPa wind of 999 m/s", *run_kind(
+    MET_HEADER + ",wind_500hPa [m/s]\n" + "\n".join(
+        r + (",999" if i == 3 else ",20") for i, r in enumerate(met_rows())) + "\n",
+    ["met.csv:5", "column \"wind_500hPa [m/s]\"", "500 hPa wind speed 999 m/s",
+     "expected a 500 hPa wind speed from 0 to 150 m/s"],
+    case=CASE + '\n[diagnostics]\nschemes = ["horton-2014"]\n'))
+
 # --- NetCDF met ----------------------------------------------------------------------------------
 NC_CASE = case_with('file = "met.csv"', 'file = "met.nc"\nreading = "instantaneous"').replace(
     'reading = "hour_average"\nhour_label = "period_start"\n', "", 1)
