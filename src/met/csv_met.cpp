@@ -142,6 +142,16 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
                      "[deg]\" and hourly rows");
   }
   const std::string header_where = display_name + ":" + std::to_string(header_no);
+  // A header of column names is short; a huge first line (a file with no line breaks) is
+  // refused before it is split and copied.
+  constexpr std::size_t kMaxHeaderBytes = 65536;
+  if (header_line.size() > kMaxHeaderBytes) {
+    throw InputError(header_where,
+                     "a first line of " + std::to_string(header_line.size()) + " bytes (" +
+                         excerpt(header_line) + ")",
+                     "a header row of column names such as \"time,mixing_height [m],wind_speed "
+                     "[m/s],wind_from [deg]\", then one line per hour");
+  }
   const std::vector<std::string> headers = split_csv_row(std::string(header_line), header_where);
   std::vector<Column> cols;
   int time_col = -1;

@@ -199,7 +199,8 @@ kind("met: NUL in the header", *run_kind(met_text(header="ti\0me" + MET_HEADER[4
 kind("met: path is a folder", *run_kind(None, ["met.csv", "the path is a folder", "expected a file"]))
 kind("met: file missing", {"case.toml": CASE}, ["run", "case.toml", "-o", "OUT"],
      ["met.csv", "cannot be opened", "expected a readable file"])
-kind("met: a 1 MB line", *run_kind("x" * 1000000 + "\n", ["met.csv:1", "\u2026", "expected a column named time"]))
+kind("met: a 1 MB line", *run_kind("x" * 1000000 + "\n", ["met.csv:1", "a first line of 1000000 bytes",
+                                                          "\u2026", "expected a header row"]))
 
 kind("met: 500 hPa wind of 999 m/s", *run_kind(
     MET_HEADER + ",wind_500hPa [m/s]\n" + "\n".join(
