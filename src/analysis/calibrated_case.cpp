@@ -68,7 +68,7 @@ void path_node(const toml::node* n, const std::filesystem::path& case_dir,
 }
 
 std::string scale_text(double x) {
-  return "x" + format_number(x, 6);
+  return std::string("x").append(format_number(x, 6));  // not "x" + ...: GCC bug 105329
 }
 
 // The case's index of the fitted pollutant (by name or canonical identity).
@@ -130,7 +130,7 @@ void scale_fitted_columns(const toml::table& root, const std::string& pname,
     for (const FitEstimate& e : fit.estimates) {
       const bool bg = e.name == "background" && ed.what.rfind("[pollutants.", 0) == 0;
       const bool sec = ed.what.rfind("[sectors." + e.name + "]", 0) == 0;
-      if (bg || sec) ed.what += " (" + scale_text(e.value) + ")";
+      if (bg || sec) ed.what.append(" (").append(scale_text(e.value)).append(")");
     }
   }
 }

@@ -43,6 +43,7 @@ struct EvaluateArgs {
   std::uint64_t seed = 1;
   std::string output_dir;
   bool quiet = false;
+  std::vector<std::string> missing_values;
 };
 
 std::vector<std::string> split_list(const std::string& s) {
@@ -117,7 +118,11 @@ SectorFitOptions fit_options(const EvaluateArgs& a, std::size_t monitors) {
 }
 
 // Every monitor file, read before the run so that a bad file is refused at once.
-std::vector<Observations> read_monitor_files(const std::vector<std::string>& paths) {
+std::vector<Observations> read_monitor_files(const std::vector<std::string>& paths,
+                                             const std::vector<std::string>& missing_values,
+                                             std::vector<std::string>& notes) {
+  ObservationsOptions options;
+  options.missing_values = parse_missing_value_codes(missing_values, "--missing-value");
   std::vector<Observations> observations;
   for (std::size_t k = 0; k < paths.size(); ++k) {
     for (std::size_t j = 0; j < k; ++j) {
@@ -127,7 +132,10 @@ std::vector<Observations> read_monitor_files(const std::vector<std::string>& pat
                          "each monitor file once (its hours would count twice)");
       }
     }
-    observations.push_back(read_observations_csv(paths[k]));
+    observations.push_back(read_observations_csv(paths[k], options));
+    for (const auto& note : reading_notes(observations.back())) {
+      notes.push_back(paths[k] + ": " + note);
+    }
   }
   return observations;
 }
@@ -216,7 +224,9 @@ void run(const EvaluateArgs& a) {
   const CaseSpec c = load_case(a.case_file);
   EvaluationReportInput in;
   in.below = parse_below_detection(a.below, "--below-detection");
-  const std::vector<Observations> observations = read_monitor_files(a.monitors);
+  std::vector<std::string> notes;  // said once the evaluation has succeeded
+  const std::vector<Observations> observations =
+      read_monitor_files(a.monitors, a.missing_values, notes);
   const std::vector<RuleSet> rules = rules_for(c, a);
   const MetSeries met = read_case_met(c);
   Progress progress;
@@ -246,6 +256,7 @@ void run(const EvaluateArgs& a) {
   auto rendered = render_evaluation_outputs(in);
   files.insert(files.begin(), rendered.begin(), rendered.end());
   const auto written = write_output_files(dir, files);
+  for (const auto& note : notes) std::cerr << "lidbox evaluate: note: " << note << "\n";
   if (!a.quiet) {
     std::cout << output_named(files, "summary.txt").content << "Written:";
     for (const auto& w : written) std::cout << ' ' << w.string();
@@ -268,6 +279,9 @@ void add_evaluate_command(CLI::App& app, int& exit_code) {
          "Monitor files in the observe format (time, then \"<pollutant> [<unit>]\" columns; "
          "empty cell = missing, \"<L\" = below the detection limit L)")
       ->required();
+  sub->add_option("--missing-value", a->missing_values,
+                  "a code the monitor files write for a missing value (e.g. -999); repeat or "
+                  "separate by commas; such cells become gaps and are counted");
   sub->add_option("--pollutant", a->pollutant,
                   "Only this pollutant (needed with --fit when several pair)");
   sub->add_option(

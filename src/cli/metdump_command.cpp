@@ -92,6 +92,16 @@ std::string standard_name_for(const std::string& key, const std::string& unit) {
 
 void dump_concentrations(const MetDumpArgs& a) {
   const auto series = read_concentrations_netcdf(a.input, netcdf_met_options(a.nc));
+  // Fill and missing values of monitor data are gaps: counted here, never dropped silently.
+  for (const auto& [k, s] : series) {
+    std::size_t missing = 0;
+    for (double x : s.values) missing += std::isnan(x) ? 1 : 0;
+    if (missing > 0) {
+      std::cerr << "lidbox met-dump: note: " << k << ": " << missing << " of " << s.size()
+                << " hours missing (_FillValue, missing_value or outside valid_range): gaps in "
+                   "the output\n";
+    }
+  }
   UtcSeconds first = series.front().second.first_hour_start_utc, last = first;
   for (const auto& [k, s] : series) {
     first = std::min(first, s.first_hour_start_utc);
@@ -142,7 +152,6 @@ void add_met_dump_command(CLI::App& app, int& exit_code) {
   auto args = std::make_shared<MetDumpArgs>();
   CLI::App* sub = app.add_subcommand(
       "met-dump", "Show the hourly met (or concentrations) lidbox reads from a NetCDF file");
-  sub->group("");  // diagnostic: kept out of the main help
   sub->add_option("file", args->input, "CF-NetCDF input file")->required();
   add_netcdf_options(*sub, args->nc);
   sub->add_flag("--concentrations", args->concentrations,

@@ -5,8 +5,8 @@
 #include <memory>
 #include <sstream>
 
-#include "lidbox/base/caution.hpp"
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/text.hpp"
 #include "lidbox/standards/observations_csv.hpp"
 #include "lidbox/standards/rule_set.hpp"
 #include "lidbox/report/standards_tables.hpp"
@@ -24,6 +24,8 @@ struct ObserveArgs {
   std::string aqi_table = "2024";
   std::string index;
   std::string out_dir = "outputs";
+  std::string deprecated_out;  // --out, the old spelling of -o/--output
+  std::vector<std::string> missing_values;
   std::string prefix;
   std::vector<std::string> rolling;
   bool no_aqi = false;
@@ -67,7 +69,14 @@ RollingRequest parse_rolling(const std::string& text) {
 }
 
 void run(const ObserveArgs& a) {
-  const auto obs = read_observations_csv(a.observations);
+  ObservationsOptions read_options;
+  read_options.missing_values = parse_missing_value_codes(a.missing_values, "--missing-value");
+  const auto obs = read_observations_csv(a.observations, read_options);
+  std::string out_dir = a.out_dir;
+  if (!a.deprecated_out.empty()) {
+    std::cerr << "lidbox observe: warning: --out is deprecated; use -o/--output\n";
+    out_dir = a.deprecated_out;
+  }
   ReportOptions opt;
   opt.lst_offset_s = parse_utc_offset_s(a.lst_offset, "--lst-offset");
   opt.zone = TimeZone::parse(format_utc_offset(opt.lst_offset_s), "--lst-offset");
@@ -93,10 +102,15 @@ void run(const ObserveArgs& a) {
     std::cerr << "lidbox observe: note: " << n << " " << pollutant
               << " values below detection (\"<L\") are missing values in these tables\n";
   }
+  for (const auto& note : reading_notes(obs)) std::cerr << "lidbox observe: note: " << note << "\n";
   const auto report = compute_standards_report(obs.series, std::move(opt));
-  const auto written = write_standards_report(report, a.out_dir);
+  const auto written = write_standards_report(report, out_dir);
   for (const auto& p : written) std::cout << "wrote " << p.string() << "\n";
-  std::cerr << "lidbox observe: " << kScreeningCaution << "\n";
+  // Monitor data are measurements, not the box model's estimate: the model's caution would
+  // misdescribe them.
+  std::cerr << "lidbox observe: these tables summarise measured data from " << a.observations
+            << " as given (no model); a screening summary, not an official compliance "
+               "determination or alert.\n";
 }
 
 }  // namespace
@@ -127,7 +141,12 @@ void add_observe_command(CLI::App& app, int& exit_code) {
   sub->add_option("--index", args->index,
                   "the index people read: an id of the shipped indices (us-aqi-2024, us-aqi-2018, "
                   "eu-eaqi-2017, ca-aqhi) or the path of an index TOML file");
-  sub->add_option("--out", args->out_dir, "output folder")->capture_default_str();
+  sub->add_option("-o,--output", args->out_dir, "Output folder")->capture_default_str();
+  // The old spelling, kept hidden for scripts; it warns.
+  sub->add_option("--out", args->deprecated_out, "deprecated: -o/--output")->group("");
+  sub->add_option("--missing-value", args->missing_values,
+                  "a code the file writes for a missing value (e.g. -999); repeat or separate by "
+                  "commas; such cells become gaps and are counted");
   sub->add_option("--prefix", args->prefix, "file-name prefix (default: <observations stem>_)");
   sub->add_option("--rolling", args->rolling,
                   "also write running means: K or K:M (K-hour windows, at least M valid hours)");

@@ -6,6 +6,7 @@
 #include <limits>
 
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/plausibility.hpp"
 #include "lidbox/base/text.hpp"
 #include "lidbox/base/units.hpp"
 
@@ -158,7 +159,27 @@ HourlyDiagnosticsInput diagnostics_input(const MetSeries& met, MetReading readin
         met.source + ": column \"" + col->name + " [" + col->unit + "]\"");
     auto& out = in.field[static_cast<std::size_t>(f)];
     out.resize(n);
-    for (std::size_t i = 0; i < n; ++i) out[i] = conv(col->values[i]);
+    // The shipped ranges of plausibility.hpp, as for every other met value.
+    static const PlausibilityLimits limits;
+    // The other winds (geostrophic, mixed-layer, transport) have no range of their own.
+    const char* key = f == DiagnosticField::precipitation ? "precipitation"
+                      : f == DiagnosticField::wind_500hPa ? "wind_500hPa"
+                                                          : nullptr;
+    for (std::size_t i = 0; i < n; ++i) {
+      out[i] = conv(col->values[i]);
+      if (!key) continue;
+      const bool inside = !(out[i] < limits.range(key).min || out[i] > limits.range(key).max);
+      if (!inside) {
+        const std::string line =
+            i < met.source_line.size() && met.source_line[i] > 0
+                ? ":" + std::to_string(met.source_line[i])
+                : std::string();
+        limits.check(key, out[i],
+                     met.source + line + ": column \"" + col->name + " [" + col->unit + "]\" (" +
+                         format_utc(met.stamp(i)) + ")",
+                     "", "", "the shipped range: the diagnostics do not read [plausibility]");
+      }
+    }
   }
   return in;
 }

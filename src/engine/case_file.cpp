@@ -33,17 +33,21 @@ constexpr int kIntMax = std::numeric_limits<int>::max();
 // A concentration's unit may be a mixing ratio, which needs the pollutant's molar mass and
 // reference conditions (concentration_units.hpp).
 std::optional<double> concentration_g_m3(const TomlTable& r, const std::string& key,
-                                         const PollutantSpec& p) {
+                                         const PollutantSpec& p, const PlausibilityLimits& lim) {
   const auto q = r.optional_quantity_text(key, "concentration", "0.2 " + p.unit.text);
   if (!q) return std::nullopt;
   if (q->number < 0.0) throw InputError(r.where(key), "a negative concentration", "a value >= 0");
-  return q->number *
-         parse_concentration_unit(q->unit, p.molar_mass_g_mol, p.reference, r.where(key)).to_g_m3;
+  const double g_m3 =
+      q->number *
+      parse_concentration_unit(q->unit, p.molar_mass_g_mol, p.reference, r.where(key)).to_g_m3;
+  lim.check("concentration", g_m3, r.where(key), q->text);
+  return g_m3;
 }
 
 double required_concentration_g_m3(const TomlTable& r, const std::string& key,
-                                   const PollutantSpec& p, const std::string& expected) {
-  const auto v = concentration_g_m3(r, key, p);
+                                   const PollutantSpec& p, const std::string& expected,
+                                   const PlausibilityLimits& lim) {
+  const auto v = concentration_g_m3(r, key, p, lim);
   if (!v) r.throw_missing(key, expected);
   return *v;
 }
@@ -69,16 +73,21 @@ std::optional<double> loss_rate_per_s(const TomlTable& r, const std::string& lif
 
 // An emission is a total rate ("1.5 t/h") or an area flux ("2 ug m-2 s-1") over the footprint;
 // the unit decides which.
-double emission_rate_g_s(const TomlTable& r, const std::string& key, double area_m2) {
+double emission_rate_g_s(const TomlTable& r, const std::string& key, double area_m2,
+                         const PlausibilityLimits& lim) {
   const auto q = r.optional_quantity_text(key, "emission rate", "1.5 t/h");
   if (!q) return 0.0;
   const std::string w = r.where(key);
   if (q->number < 0.0) throw InputError(w, "a negative emission rate", "a rate >= 0");
   if (units_convertible(q->unit, "g/s")) {
-    return unit_conversion(q->unit, "g/s", "mass rate", w)(q->number);
+    const double g_s = unit_conversion(q->unit, "g/s", "mass rate", w)(q->number);
+    lim.check("emission_rate", g_s, w, q->text);
+    return g_s;
   }
   if (units_convertible(q->unit, "g m-2 s-1")) {
-    return unit_conversion(q->unit, "g m-2 s-1", "area flux", w)(q->number) * area_m2;
+    const double flux = unit_conversion(q->unit, "g m-2 s-1", "area flux", w)(q->number);
+    lim.check("emission_flux", flux, w, q->text);
+    return flux * area_m2;
   }
   throw InputError(w, "unit \"" + q->unit + "\" is neither a mass rate nor an area flux",
                    "a total rate such as \"1.5 t/h\" or \"400 g/s\", or an area flux such as "
@@ -146,7 +155,8 @@ void check_sectors_tile_circle(std::vector<WindSectorValue> sorted, const std::s
   }
 }
 
-std::vector<WindSectorValue> read_wind_sectors(const TomlTable& rb, const PollutantSpec& p) {
+std::vector<WindSectorValue> read_wind_sectors(const TomlTable& rb, const PollutantSpec& p,
+                                               const PlausibilityLimits& lim) {
   std::vector<WindSectorValue> out;
   for (const TomlTable& rs :
        rb.array_of_tables("by_wind_from", {"from", "to", "value"},
@@ -156,7 +166,7 @@ std::vector<WindSectorValue> read_wind_sectors(const TomlTable& rb, const Pollut
     w.to_deg = rs.required_quantity("to", "degree", "direction");
     w.value_g_m3 = required_concentration_g_m3(
         rs, "value", p,
-        "a concentration with its unit in quotes, such as \"0.2 " + p.unit.text + "\"");
+        "a concentration with its unit in quotes, such as \"0.2 " + p.unit.text + "\"", lim);
     for (double* d : {&w.from_deg, &w.to_deg}) {
       if (*d < 0.0 || *d > 360.0)
         throw InputError(rs.where_table(), "a direction outside 0-360", "0 to 360 deg");
@@ -169,7 +179,7 @@ std::vector<WindSectorValue> read_wind_sectors(const TomlTable& rb, const Pollut
 }
 
 // Background: "0.1 ppm", { column = "..." } or { by_wind_from = [ {from, to, value}, ... ] }.
-void read_background(const TomlTable& r, PollutantSpec& p) {
+void read_background(const TomlTable& r, PollutantSpec& p, const PlausibilityLimits& lim) {
   const toml::node* bg = r.node("background");
   if (!bg) {
     r.throw_missing("background",
@@ -178,7 +188,7 @@ void read_background(const TomlTable& r, PollutantSpec& p) {
                         p.unit.text + "\"");
   }
   if (bg->is_string()) {
-    p.background.value_g_m3 = *concentration_g_m3(r, "background", p);
+    p.background.value_g_m3 = *concentration_g_m3(r, "background", p, lim);
     return;
   }
   if (!bg->is_table()) {
@@ -195,7 +205,7 @@ void read_background(const TomlTable& r, PollutantSpec& p) {
     p.background.column = *col;
   } else {
     p.background.kind = BackgroundSpec::Kind::by_wind_from;
-    p.background.sectors = read_wind_sectors(rb, p);
+    p.background.sectors = read_wind_sectors(rb, p, lim);
   }
 }
 
@@ -206,7 +216,7 @@ void read_initial_values(const TomlTable& r, PollutantSpec& p, const CaseSpec& c
       throw InputError(r.where(key), "an initial value with spin_up = \"repeat_first_day\"",
                        "spin_up = \"none\" in [model] to start from given values");
     }
-    const double v = *concentration_g_m3(r, key, p);
+    const double v = *concentration_g_m3(r, key, p, c.plausibility);
     (std::string(key) == "initial" ? p.initial_g_m3 : p.initial_residual_g_m3) = v;
   }
   // Without a top the residual layer starts with no depth and its start value would weigh
@@ -244,11 +254,12 @@ PollutantSpec read_pollutant(const TomlTable& pollutants, const std::string& nam
     throw InputError(r.where("deposition_velocity"), "a negative deposition velocity",
                      "a value >= 0");
   }
-  read_background(r, p);
+  read_background(r, p, c.plausibility);
   p.free_troposphere_g_m3 = required_concentration_g_m3(
       r, "free_troposphere", p,
       "the concentration above the residual layer, such as free_troposphere = \"0.08 " +
-          p.unit.text + "\"");
+          p.unit.text + "\"",
+      c.plausibility);
   read_initial_values(r, p, c);
   return p;
 }
@@ -491,7 +502,8 @@ EmissionSector read_sector(const TomlTable& sectors, const std::string& name, co
   EmissionSector s;
   s.name = name;
   for (const auto& pollutant : names) {
-    s.rate_g_s.push_back(emission_rate_g_s(*em, pollutant, c.footprint.area_m2()));
+    s.rate_g_s.push_back(
+        emission_rate_g_s(*em, pollutant, c.footprint.area_m2(), c.plausibility));
   }
   s.clock = ClockProfile::from_weights(r.number_array("hour_of_day"), r.number_array("day_of_week"),
                                        r.number_array("month"), r.where_table());
@@ -612,6 +624,36 @@ void read_bulletin(const TomlTable& top, const std::string& base_dir, CaseSpec& 
   c.bulletin_area = r->optional_string("area").value_or("");
 }
 
+// [plausibility]: key = ["min", "max"], two quantities in the range's unit family.
+void read_plausibility(const TomlTable& top, CaseSpec& c) {
+  const auto r = top.optional_table("plausibility", c.plausibility.keys());
+  if (!r) return;
+  for (const auto& key : c.plausibility.keys()) {
+    if (!r->has(key)) continue;
+    const PlausibleRange& range = c.plausibility.range(key);
+    const std::string unit = range.unit == "degree" ? "deg" : range.unit;
+    const std::string expected = "two quantities [min, max] with min <= max, such as [\"" +
+                                 format_number(range.min) + " " + unit + "\", \"" +
+                                 format_number(range.max) + " " + unit + "\"]";
+    const std::vector<std::string> texts = r->string_array(key);
+    if (texts.size() != 2) {
+      throw InputError(r->where(key), std::to_string(texts.size()) + " elements", expected);
+    }
+    double v[2] = {0.0, 0.0};
+    for (int i = 0; i < 2; ++i) {
+      const auto q = split_quantity(texts[static_cast<std::size_t>(i)]);
+      if (!q) throw InputError(r->where(key), "\"" + excerpt(texts[i]) + "\"", expected);
+      v[i] = range.unit == "degree"
+                 ? direction_unit_to_degrees(q->unit, r->where(key))(q->number)
+                 : unit_conversion(q->unit, range.unit, range.quantity, r->where(key))(q->number);
+    }
+    if (!(v[0] <= v[1])) {
+      throw InputError(r->where(key), "min " + texts[0] + " above max " + texts[1], expected);
+    }
+    c.plausibility.set(key, v[0], v[1], "set in " + r->where(key));
+  }
+}
+
 // [scenario], [ensemble] and [cut]: their readers live with their concepts.
 void read_forecast_tables(const TomlTable& top, const std::string& base_dir, CaseSpec& c) {
   std::vector<std::string> sectors;
@@ -629,9 +671,10 @@ CaseSpec parse_case(const std::string& text, const std::string& file, const std:
   const TomlDocument doc(text, file);
   const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
                             "pollutants", "sectors", "standards", "diagnostics", "grid", "output",
-                            "scenario", "ensemble", "cut", "bulletin"});
+                            "scenario", "ensemble", "cut", "plausibility", "bulletin"});
   CaseSpec c;
   c.file = file;
+  read_plausibility(top, c);  // first: the values of every other table are checked against it
   read_top_level(top, c);
   read_airshed(top, c);
   read_met(top, base_dir, c);

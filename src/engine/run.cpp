@@ -74,16 +74,18 @@ MetSeries read_case_met(const CaseSpec& c) {
       if (p.background.kind == BackgroundSpec::Kind::column) o.extra[p.background.column] = p.background.column;
     }
     for (const auto& [field, variable] : c.diagnostics.fields) o.extra[field] = variable;
+    o.limits = c.plausibility;
     MetSeries met = read_met_netcdf(c.met.path, o);
     fill_gaps(met, c.met.max_gap_hours);
-    validate_met(met);
+    validate_met(met, c.plausibility);
     return met;
   }
   CsvMetOptions o;
   o.zone_for_naive_times = &c.zone;
   o.max_gap_hours = c.met.max_gap_hours;
+  o.limits = &c.plausibility;
   MetSeries met = read_met_csv(c.met.path, o, c.met.display_name);
-  validate_met(met);
+  validate_met(met, c.plausibility);
   return met;
 }
 
@@ -287,8 +289,10 @@ void set_initial_state(const CaseSpec& c, const MetSeries& met, const Forcing& F
   if (c.initial_residual_top_m) {
     const double top = *c.initial_residual_top_m;
     if (top < state.mixing_height_m) {
-      const std::string line =
-          met.source_line.empty() ? "" : ":" + std::to_string(met.source_line[0]);
+      // Appended, not `":" + std::to_string(...)`: g++ 12 at -O3 warns falsely (-Wrestrict,
+      // GCC bug 105329) on a literal plus a temporary string.
+      std::string line;
+      if (!met.source_line.empty()) line.append(":").append(std::to_string(met.source_line[0]));
       throw InputError(c.initial_residual_top_where,
                        "a top of " + format_number(top) + " m, below the first lid of " +
                            format_number(state.mixing_height_m) + " m (" + met.source + line + ")",

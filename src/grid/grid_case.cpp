@@ -118,7 +118,8 @@ GridCase parse_grid_case(const std::string& text, const std::string& file,
   const CaseSpec& c = gc.base;
   const TomlDocument doc(text, file);
   const TomlTable top(doc, {"name", "title", "invented", "time_zone", "airshed", "met", "model",
-                            "pollutants", "sectors", "standards", "diagnostics", "grid", "output", "scenario", "ensemble", "cut"});
+                            "pollutants", "sectors", "standards", "diagnostics", "grid", "output", "scenario", "ensemble", "cut",
+                            "plausibility"});
   const auto g = top.optional_table(
       "grid", {"pollutant", "flux", "periods", "percentiles", "exceedance_statistic",
                "exceedance_level", "series", "threads", "chunk_days"});
@@ -140,6 +141,7 @@ GridCase parse_grid_case(const std::string& text, const std::string& file,
   gc.diagnostics = load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
   gc.met.display_name = c.met.display_name;
   gc.met.variables = c.met.netcdf.variables;
+  gc.met.limits = c.plausibility;
   for (DiagnosticField f : gc.diagnostics.needed_fields()) {
     if (f == DiagnosticField::mixing_height || f == DiagnosticField::wind_10m) continue;
     const auto it = c.diagnostics.fields.find(to_string(f));

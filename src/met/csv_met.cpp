@@ -142,6 +142,16 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
                      "[deg]\" and hourly rows");
   }
   const std::string header_where = display_name + ":" + std::to_string(header_no);
+  // A header of column names is short; a huge first line (a file with no line breaks) is
+  // refused before it is split and copied.
+  constexpr std::size_t kMaxHeaderBytes = 65536;
+  if (header_line.size() > kMaxHeaderBytes) {
+    throw InputError(header_where,
+                     "a first line of " + std::to_string(header_line.size()) + " bytes (" +
+                         excerpt(header_line) + ")",
+                     "a header row of column names such as \"time,mixing_height [m],wind_speed "
+                     "[m/s],wind_from [deg]\", then one line per hour");
+  }
   const std::vector<std::string> headers = split_csv_row(std::string(header_line), header_where);
   std::vector<Column> cols;
   int time_col = -1;
@@ -223,6 +233,8 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
     if (c.role == Role::extra) met.extra.push_back({c.name, c.unit, {}});
   }
   const double nan = std::nan("");
+  const PlausibilityLimits shipped;
+  const PlausibilityLimits& limits = options.limits ? *options.limits : shipped;
   UtcSeconds previous = 0;
   bool any = false;
   // The rows: cells are views into the file's text, the message texts are built only for an
@@ -323,19 +335,15 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
       const auto cw = [&] { return where() + ": column \"" + col.header + "\""; };
       switch (col.role) {
         case Role::mixing_height:
-          if (value < 0.0)
-            throw InputError(cw(), "negative mixing height " + cell(), "a height >= 0");
+          limits.check("mixing_height", value, cw(), cell(), col.unit);
           h = value;
           break;
         case Role::wind_speed:
-          if (value < 0.0) throw InputError(cw(), "negative wind speed " + cell(), "a speed >= 0");
+          limits.check("wind_speed", value, cw(), cell(), col.unit);
           speed = value;
           break;
         case Role::wind_from:
-          if (value < 0.0 || value > 360.0) {
-            throw InputError(cw(), "direction " + cell() + " outside 0-360 degrees",
-                             "a direction from 0 to 360 degrees clockwise from north");
-          }
+          limits.check("wind_from", value, cw(), cell(), col.unit);
           from = value;
           break;
         case Role::u:
@@ -345,12 +353,11 @@ MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
           v = value;
           break;
         case Role::temperature:
-          if (value <= 0.0)
-            throw InputError(cw(), "temperature " + cell(), "a temperature above 0 K");
+          limits.check("air_temperature", value, cw(), cell(), col.unit);
           temp = value;
           break;
         case Role::pressure:
-          if (value <= 0.0) throw InputError(cw(), "pressure " + cell(), "a pressure above 0 Pa");
+          limits.check("surface_pressure", value, cw(), cell(), col.unit);
           pres = value;
           break;
         case Role::extra:

@@ -106,7 +106,7 @@ void fill_gaps(MetSeries& met, int max_gap_hours) {
   for (auto& c : met.extra) interpolate(c.values);
 }
 
-void validate_met(const MetSeries& met) {
+void validate_met(const MetSeries& met, const PlausibilityLimits& limits) {
   for (std::size_t i = 0; i < met.size(); ++i) {
     // Appended piece by piece: g++ 12 at -O3 reports a bogus -Wrestrict overlap for
     // "literal" + std::string&& (GCC bug 105329).
@@ -125,6 +125,14 @@ void validate_met(const MetSeries& met) {
     }
     if (!std::isfinite(met.wind_u_m_s[i]) || !std::isfinite(met.wind_v_m_s[i])) {
       throw InputError(where, "a wind that is not a finite number", "finite wind values");
+    }
+    limits.check("mixing_height", h, where);
+    limits.check("wind_speed", std::hypot(met.wind_u_m_s[i], met.wind_v_m_s[i]), where);
+    if (!met.air_temperature_K.empty()) {
+      limits.check("air_temperature", met.air_temperature_K[i], where);
+    }
+    if (!met.surface_pressure_Pa.empty()) {
+      limits.check("surface_pressure", met.surface_pressure_Pa[i], where);
     }
   }
 }

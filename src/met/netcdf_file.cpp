@@ -240,6 +240,12 @@ Packing::Packing(const File& f, const Var& v)
   if (auto a = f.number_att(v.id, "valid_min"); a.size() == 1) valid_min_ = a[0];
   if (auto a = f.number_att(v.id, "valid_max"); a.size() == 1) valid_max_ = a[0];
   if (auto a = f.number_att(v.id, "scale_factor"); a.size() == 1) scale_ = a[0];
+  // A zero scale would turn every stored number into add_offset: a broken file, not data.
+  if (scale_ == 0.0 || !std::isfinite(scale_)) {
+    throw InputError(f.where(v), "scale_factor " + format_number(scale_),
+                     "a scale_factor other than 0 (CF 8.1: value = stored * scale_factor + "
+                     "add_offset)");
+  }
   if (auto a = f.number_att(v.id, "add_offset"); a.size() == 1) offset_ = a[0];
 }
 

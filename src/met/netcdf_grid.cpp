@@ -27,6 +27,8 @@ struct NetcdfGrid::Impl {
   std::string lat_name, lon_name, note;
   UtcSeconds first = 0;
   std::size_t records = 0;
+  PlausibilityLimits limits;
+  std::vector<std::string> range_keys;  // per column; "" for a field without a range
 };
 
 namespace {
@@ -129,6 +131,12 @@ NetcdfGrid::NetcdfGrid(const std::string& path, const GridMetOptions& options)
   }
   m.first = axis.t.front();
   m.records = axis.t.size();
+  m.limits = options.limits;
+  for (const auto& name : m.names) {
+    const bool wind = name == "eastward_wind" || name == "northward_wind";
+    const bool ranged = name == "mixing_height" || name == "precipitation" || name == "wind_500hPa";
+    m.range_keys.push_back(wind ? "wind_speed" : ranged ? name : "");
+  }
   for (std::size_t k = 0; k < m.vars.size(); ++k) {
     const std::string units = f.text_att(m.vars[k]->id, "units").value_or("");
     m.conv.push_back(
@@ -193,6 +201,27 @@ void NetcdfGrid::read(std::size_t record0, std::size_t n_records, std::size_t ro
         m.file.read_values(*m.vars[k], {record0, row0, 0}, {n_records, n_rows, columns_per_row()});
     const UnitConversion c = m.conv[k];
     for (double& v : out[k]) v = c(v);
+    if (!m.range_keys[k].empty()) check_slab(k, record0, row0, n_rows, out[k]);
+  }
+}
+
+void NetcdfGrid::check_slab(std::size_t k, std::size_t record0, std::size_t row0,
+                            std::size_t n_rows, const std::vector<double>& values) const {
+  const Impl& m = *impl_;
+  const PlausibleRange& range = m.limits.range(m.range_keys[k]);
+  const bool magnitude = m.range_keys[k] == "wind_speed";
+  const std::size_t per_record = n_rows * columns_per_row();
+  for (std::size_t i = 0; i < values.size(); ++i) {
+    const double x = magnitude ? std::fabs(values[i]) : values[i];
+    if (std::isnan(x) || (x >= range.min && x <= range.max)) continue;
+    const std::size_t record = record0 + i / per_record;
+    const std::size_t row = row0 + (i % per_record) / columns_per_row();
+    const std::size_t column = i % columns_per_row();
+    m.limits.check(m.range_keys[k], x,
+                   m.file.where(*m.vars[k]) + ": record " + std::to_string(record + 1) + " (" +
+                       format_utc(m.first + static_cast<UtcSeconds>(record) * kSecondsPerHour) +
+                       "), row " + std::to_string(row + 1) + ", column " +
+                       std::to_string(column + 1));
   }
 }
 

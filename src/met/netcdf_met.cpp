@@ -214,6 +214,42 @@ MetColumns load_met_columns(const File& f, const NetcdfMetOptions& opt, const Va
   return mc;
 }
 
+// Each value of a variable as read, per cell and record, against its range: the message names the
+// variable, the record (1-based) and its time.
+void check_plausible(const File& f, const Loaded& l, std::string_view key,
+                     const PlausibilityLimits& limits, bool magnitude = false) {
+  for (std::size_t c = 0; c < l.values.cells.size(); ++c) {
+    const auto& cell = l.values.cells[c];
+    for (std::size_t r = 0; r < cell.size(); ++r) {
+      const double x = magnitude ? std::fabs(cell[r]) : cell[r];
+      if (std::isnan(x)) continue;
+      const PlausibleRange& range = limits.range(key);
+      if (x >= range.min && x <= range.max) continue;
+      std::string where = f.where(*l.var) + ": record " + std::to_string(r + 1);
+      if (r < l.axis.t.size()) where += " (" + format_utc(l.axis.t[r]) + ")";
+      if (l.values.cells.size() > 1) where += ", cell " + std::to_string(c + 1);
+      limits.check(key, x, where);
+    }
+  }
+}
+
+// Which range each loaded variable answers to; the extra columns have none of their own.
+void check_met_plausible(const File& f, const MetColumns& mc, const MetVariables& mv,
+                         const PlausibilityLimits& limits) {
+  check_plausible(f, mc.loaded[0], "mixing_height", limits);
+  if (mv.components()) {
+    // A component is at most the speed.
+    check_plausible(f, mc.loaded[1], "wind_speed", limits, true);
+    check_plausible(f, mc.loaded[2], "wind_speed", limits, true);
+  } else {
+    check_plausible(f, mc.loaded[1], "wind_speed", limits);
+    check_plausible(f, mc.loaded[2], "wind_from", limits);
+  }
+  std::size_t next = 3;
+  if (mv.air_temperature) check_plausible(f, mc.loaded[next++], "air_temperature", limits);
+  if (mv.surface_pressure) check_plausible(f, mc.loaded[next++], "surface_pressure", limits);
+}
+
 // A variable whose every value is missing would reach the gap rule as "missing values at the
 // start of the series", naming no variable.
 void refuse_all_missing(const File& f, const std::vector<Loaded>& loaded) {
@@ -339,6 +375,7 @@ MetSeries read_met_netcdf(const std::string& path, const NetcdfMetOptions& opt,
   const MetVariables mv = netcdf::find_met_variables(f, opt);
   MetColumns mc = load_met_columns(f, opt, mapped_time, mv);
   refuse_all_missing(f, mc.loaded);
+  check_met_plausible(f, mc, mv, opt.limits);
   check_one_time_axis(f, mc.loaded);
   Hourly hr = to_hourly(f, mc.loaded[0].axis, mc.cols, opt.sub_hourly, opt.coarse);
   MetSeries m = met_series(f, mc, hr);

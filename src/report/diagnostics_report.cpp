@@ -15,18 +15,23 @@ std::string render_stagnation_csv(const DiagnosticsSetup& setup, const Diagnosti
   }
   for (const auto& s : setup.schemes) out += "," + s.id + "_stagnant," + s.id + "_streak_day";
   out += "\n";
+  // Fields are appended one by one: g++ 12 at -O3 warns falsely (-Wrestrict, GCC bug 105329)
+  // on a one-character literal plus a temporary string.
   for (const auto& d : r.days) {
-    out += d.date + "," + std::to_string(d.hours) + "," + format_number(d.ventilation.min_m2_s) +
-           "," + format_number(d.ventilation.mean_m2_s) + "," +
-           format_number(d.ventilation.afternoon_max_m2_s);
+    out.append(d.date).append(",").append(std::to_string(d.hours));
+    for (double v : {d.ventilation.min_m2_s, d.ventilation.mean_m2_s,
+                     d.ventilation.afternoon_max_m2_s}) {
+      out.append(",").append(format_number(v));
+    }
     if (setup.table) {
-      out += "," + format_number(d.category_value) + ",";
+      out.append(",").append(format_number(d.category_value)).append(",");
       if (d.category >= 0)
-        out += setup.table->categories[static_cast<std::size_t>(d.category)].name;
+        out.append(setup.table->categories[static_cast<std::size_t>(d.category)].name);
     }
     for (std::size_t s = 0; s < setup.schemes.size(); ++s) {
-      out += "," + (d.verdict[s] < 0 ? std::string() : std::to_string(d.verdict[s])) + "," +
-             std::to_string(d.streak_day[s]);
+      out.append(",");
+      if (d.verdict[s] >= 0) out.append(std::to_string(d.verdict[s]));
+      out.append(",").append(std::to_string(d.streak_day[s]));
     }
     out += "\n";
   }
@@ -85,7 +90,7 @@ void append_diagnostics_outputs(std::vector<OutputFile>& files, const Diagnostic
   bool found = false;
   for (auto& f : files) {
     if (f.name == "summary.txt") {
-      f.content += "\n" + render_diagnostics_summary(setup, r);
+      f.content.append("\n").append(render_diagnostics_summary(setup, r));
       found = true;
     }
   }

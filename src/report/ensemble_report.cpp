@@ -13,7 +13,7 @@ namespace lidbox {
 namespace {
 
 std::string q_label(double q) {
-  return "p" + format_number(q, 6);
+  return std::string("p").append(format_number(q, 6));  // not "p" + ...: GCC bug 105329
 }
 
 std::string percent(double p) {

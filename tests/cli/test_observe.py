@@ -41,7 +41,7 @@ with tempfile.TemporaryDirectory() as tmp:
     write(good, "\n".join(rows) + "\n")
     out = os.path.join(tmp, "out")
     rc, so, se = run(["observe", good, "--rules", "eu-2008", "--lst-offset", "+01:00",
-                      "--issue-time", "2025-03-01T00:00Z", "--out", out])
+                      "--issue-time", "2025-03-01T00:00Z", "-o", out])
     check(rc == 0, "good file exits 0 (got %d, stderr %s)" % (rc, se))
     names = sorted(os.listdir(out)) if os.path.isdir(out) else []
     check(names == sorted("good_" + n for n in ["limits.csv", "daily.csv", "periods.csv", "episodes.csv",
@@ -65,7 +65,7 @@ with tempfile.TemporaryDirectory() as tmp:
     write(dup, "time,CO [ppm]\n2025-01-01T00:00Z,0.5\n2025-01-01T01:00Z,0.6\n"
                "2025-01-01T02:00+01:00,0.7\n")
     out2 = os.path.join(tmp, "out2")
-    rc, so, se = run(["observe", dup, "--lst-offset", "-05:00", "--out", out2])
+    rc, so, se = run(["observe", dup, "--lst-offset", "-05:00", "-o", out2])
     check(rc == 2, "duplicate hour exits 2 (got %d)" % rc)
     check(se.strip() == "lidbox: error: %s:4: time 2025-01-01T02:00+01:00 repeats the "
           "hour on line 3; expected strictly increasing hours" % dup, "message: %r" % se)
@@ -78,7 +78,7 @@ with tempfile.TemporaryDirectory() as tmp:
                      'reference_pressure_Pa = 101300.0\n[[limit]]\nid = "a"\npollutant = "CO"\n'
                      'kind = "k"\naveraging = "8-hour"\nstatistic = "max_8h"\nlevel = 1.0\n')
     rc, so, se = run(["observe", good, "--rules", bad_rules, "--lst-offset", "+01:00",
-                      "--out", out2])
+                      "-o", out2])
     check(rc == 2, "bad rule file exits 2 (got %d)" % rc)
     check(se.strip() == "lidbox: error: %s:13: [[limit]] statistic: unknown statistic \"max_8h\"; expected one of "
           "hourly_value, running_mean, daily_mean, daily_max_1h, daily_max_8h_17_windows, "
@@ -87,17 +87,17 @@ with tempfile.TemporaryDirectory() as tmp:
     check(not os.path.exists(out2), "nothing written for a bad rule file")
 
     # Unknown rule-set id, bad offset, missing required option.
-    rc, so, se = run(["observe", good, "--rules", "us-naqs", "--lst-offset", "+01:00", "--out", out2])
+    rc, so, se = run(["observe", good, "--rules", "us-naqs", "--lst-offset", "+01:00", "-o", out2])
     rules_dir = os.path.join(os.path.abspath(SOURCE), "src", "data", "rules")
     check(rc == 2 and se.strip() == "lidbox: error: rule set \"us-naqs\": not found in %s; expected "
           "one of eu-2008-50, eu-2024-2881, us-naaqs, who-2021 (did you mean \"us-naaqs\"?)"
           % rules_dir, "unknown id: %d %r" % (rc, se))
-    rc, so, se = run(["observe", good, "--lst-offset", "CEST", "--out", out2])
+    rc, so, se = run(["observe", good, "--lst-offset", "CEST", "-o", out2])
     check(rc == 2 and se.strip() == "lidbox: error: --lst-offset: time zone \"CEST\" has no valid "
           "offset after its standard-time name; expected a fixed offset such as \"+01:00\" or "
           "\"UTC\", an IANA zone name such as \"Europe/Paris\", or a POSIX TZ string such as \"CET-1CEST,M3.5.0,M10.5.0/3\" (POSIX sign: hours "
           "WEST of Greenwich are positive)", "bad offset: %d %r" % (rc, se))
-    rc, so, se = run(["observe", good, "--out", out2])
+    rc, so, se = run(["observe", good, "-o", out2])
     check(rc == 2 and se.strip() == "--lst-offset is required\nRun with --help for more information.",
           "missing --lst-offset: %d %r" % (rc, se))
     check(not os.path.exists(out2), "nothing written for bad options")
@@ -108,7 +108,7 @@ with tempfile.TemporaryDirectory() as tmp:
 demo = os.path.join(SOURCE, "met-demo", "observations-invented.csv")
 with tempfile.TemporaryDirectory() as tmp:
     rc, so, se = run(["observe", demo, "--rules", "eu-2008-50", "--lst-offset", "-05:00",
-                      "--issue-time", "2025-07-03T12:00Z", "--out", tmp, "--prefix", "demo_"])
+                      "--issue-time", "2025-07-03T12:00Z", "-o", tmp, "--prefix", "demo_"])
     check(rc == 0, "demo file exits 0 (got %d, %s)" % (rc, se))
     factor = 48.00 / (8.314462618 * 293.0 / 101300.0 * 1000.0)
     rows = [l.strip().split(",") for l in open(demo) if l.strip() and not l.startswith("#")][1:]
@@ -125,6 +125,43 @@ with tempfile.TemporaryDirectory() as tmp:
            for e in rep["episodes"] if e["rule_id"] == "O3-information"]
     check(len(runs) > 0, "the demo has ozone above the information threshold")
     check(got == runs, "demo O3 information episodes %s == recomputed %s" % (got, runs))
+
+# Issue 13 item 14: one spelling of the output folder (-o/--output); --out still works but warns;
+# `observe` says its tables are measured data and does not print the box model's caution.
+# Item 10: declared missing-value codes become counted gaps, small negatives are kept and counted.
+with tempfile.TemporaryDirectory() as tmp:
+    rows = ["time,PM2.5 [ug/m3]"]
+    for h in range(48):
+        v = {5: "-999", 6: "9999", 7: "-2.5"}.get(h, "20")
+        rows.append("2025-03-%02dT%02d:00Z,%s" % (1 + h // 24, h % 24, v))
+    coded = os.path.join(tmp, "coded.csv")
+    write(coded, "\n".join(rows) + "\n")
+    out = os.path.join(tmp, "o1")
+    rc, so, se = run(["observe", coded, "--lst-offset", "+00:00", "--output", out,
+                      "--missing-value", "-999,9999"])
+    check(rc == 0, "declared codes: exit 0 (got %d, %s)" % (rc, se))
+    check("lidbox observe: note: 2 PM2.5 values hold a declared missing-value code and are gaps "
+          "in these tables" in se, "codes counted: %r" % se)
+    check("lidbox observe: note: 1 PM2.5 values are below zero (lowest -2.5 ug m-3), within the "
+          "instrument-noise tolerance; kept as measured" in se, "negatives counted: %r" % se)
+    check("measured data" in se and CAUTION_START not in se,
+          "observe states measured data, not the model's caution: %r" % se)
+    out2 = os.path.join(tmp, "o2")
+    rc, so, se = run(["observe", coded, "--lst-offset", "+00:00", "--out", out2,
+                      "--missing-value", "-999", "--missing-value", "9999"])
+    check(rc == 0 and "warning: --out is deprecated; use -o/--output" in se and os.path.isdir(out2),
+          "--out is a deprecated alias: %d %r" % (rc, se))
+    rc, so, se = run(["observe", coded, "--lst-offset", "+00:00", "-o", os.path.join(tmp, "o3")])
+    check(rc == 2 and se.strip() == "lidbox: error: %s:7: column \"PM2.5 [ug m-3]\": monitor "
+          "concentration -999 ug m-3 is outside the plausible range; expected a monitor "
+          "concentration from -5 to 5000 ug/m3 (common practice, no source; a missing-value code "
+          "such as -999 must be declared (observe --missing-value))" % coded,
+          "undeclared -999 refused: %d %r" % (rc, se))
+    check(not os.path.exists(os.path.join(tmp, "o3")), "nothing written for undeclared codes")
+    rc, so, se = run(["--help"])
+    check(rc == 0 and "met-dump" in so, "met-dump is listed in --help")
+    rc, so, se = run(["observe", "--help"])
+    check("-o,--output" in so and "--out " not in so, "observe --help shows -o,--output only: %r" % so)
 
 print("%d failure(s)" % len(failures))
 sys.exit(1 if failures else 0)

@@ -262,12 +262,15 @@ def test_bad_inputs():
                  'and "wind_from [deg]", or "eastward_wind [unit]" and "northward_wind [unit]"',
                  met_lines=lambda L: [",".join(c for i, c in enumerate(l.split(",")) if i != 3) for l in L])
     expect_error("negative mixing height",
-                 'cindervale-met.csv:6: column "mixing_height [m]": negative mixing height -20; '
-                 "expected a height >= 0",
+                 'cindervale-met.csv:6: column "mixing_height [m]": mixing height -20 m is outside '
+                 "the plausible range; expected a mixing height from 0 to 10000 m (common practice, "
+                 "no source; change it in [plausibility] mixing_height)",
                  met_lines=lambda L: replace_field(L, 5, 1, "-20"))
     expect_error("direction",
-                 'cindervale-met.csv:6: column "wind_from [deg]": direction 400 outside 0-360 '
-                 "degrees; expected a direction from 0 to 360 degrees clockwise from north",
+                 'cindervale-met.csv:6: column "wind_from [deg]": wind direction 400 deg is outside '
+                 "the plausible range; expected a wind direction from 0 to 360 deg (WMO-No. 8 "
+                 "convention, 0 to 360 degrees clockwise from north; change it in [plausibility] "
+                 "wind_from)",
                  met_lines=lambda L: replace_field(L, 5, 3, "400"))
     expect_error("NetCDF variable",
                  'cindervale-met-point.nc: variable "blh" (mapped to the mixing height) not found '

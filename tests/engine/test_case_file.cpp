@@ -112,7 +112,7 @@ TEST_CASE("case-file mistakes are named with file, line and key") {
   CHECK(message("[airshed]", "[airshd]") ==
         "case.toml:4: (top level): unknown key \"airshd\"; expected one of name, title, invented, "
         "time_zone, airshed, met, model, pollutants, sectors, standards, diagnostics, grid, output, "
-        "scenario, ensemble, cut, bulletin (did you mean \"airshed\"?)");
+        "scenario, ensemble, cut, plausibility, bulletin (did you mean \"airshed\"?)");
 }
 
 TEST_CASE("month weights are normalised by the mean month lengths of the Gregorian cycle") {

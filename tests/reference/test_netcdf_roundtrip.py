@@ -269,6 +269,8 @@ with netCDF4.Dataset(p6, "w", format="NETCDF4") as ds:
 out2 = os.path.join(WORK, "obs_written.nc")
 p = run("met-dump", p6, "--concentrations", "--to-netcdf", out2)
 check(p.returncode == 0, f"writer: concentrations: {p.stderr}")
+check(p.stderr == "lidbox met-dump: note: pm2p5: 1 of 4 hours missing (_FillValue, missing_value "
+      "or outside valid_range): gaps in the output\n", f"writer: the fill value is counted: {p.stderr!r}")
 x = xr.open_dataset(out2)
 check(str(x.time.values[0])[:19] == "2026-01-05T00:00:00", "writer: hour labelled by its start")
 check(str(x.time_bnds.values[0][1])[:19] == "2026-01-05T01:00:00", f"writer: time_bnds {x.time_bnds.values[0]}")

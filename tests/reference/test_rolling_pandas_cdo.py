@@ -52,7 +52,7 @@ with tempfile.TemporaryDirectory() as tmp:
             f.write("%s,%s\n" % (t.strftime("%Y-%m-%dT%H:%MZ"), "" if np.isnan(v) else "%.3f" % v))
     out = os.path.join(tmp, "out")
     args = [BINARY, "observe", obs, "--rules", "us-naaqs", "--lst-offset", "+00:00",
-            "--no-aqi", "--no-aqhi", "--out", out, "--prefix", "ref_"]
+            "--no-aqi", "--no-aqhi", "-o", out, "--prefix", "ref_"]
     for k, m in WINDOWS:
         args += ["--rolling", "%d:%d" % (k, m)]
     p = subprocess.run(args, capture_output=True, text=True)

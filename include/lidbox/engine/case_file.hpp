@@ -8,6 +8,8 @@
 // README.md documents each key.
 #pragma once
 
+#include "lidbox/base/plausibility.hpp"
+
 #include <map>
 #include <optional>
 #include <string>
@@ -99,6 +101,9 @@ const std::vector<std::string>& diagnostics_extra_fields();
 
 struct CaseSpec {
   std::string file;  // the case file as named by the user
+  // The shipped plausibility ranges with the case's [plausibility] overrides; every reader of
+  // the case's inputs checks against them (plausibility.hpp).
+  PlausibilityLimits plausibility;
   std::string name;
   std::string title;
   TimeZone zone;

@@ -12,6 +12,8 @@
 // negative mixing heights or speeds and directions outside 0-360 are InputErrors naming file:line.
 #pragma once
 
+#include "lidbox/base/plausibility.hpp"
+
 #include <string>
 
 #include "lidbox/met/met_series.hpp"
@@ -22,6 +24,9 @@ namespace lidbox {
 struct CsvMetOptions {
   const TimeZone* zone_for_naive_times = nullptr;  // null: every time must carry an offset
   int max_gap_hours = 3;
+  // Each cell is checked against its range as read (plausibility.hpp), so that the message
+  // names its line and column; null: the shipped ranges.
+  const PlausibilityLimits* limits = nullptr;
 };
 
 // `display_name` is used in messages (the path as the user wrote it).

@@ -11,6 +11,7 @@
 #include <string>
 #include <vector>
 
+#include "lidbox/base/plausibility.hpp"
 #include "lidbox/base/time.hpp"
 
 namespace lidbox {
@@ -61,8 +62,10 @@ double wind_from_deg(double u_m_s, double v_m_s);  // 0 <= result < 360; 0 for a
 // Gap rule: physics note section 5 (linear interpolation, default up to 3 h, always flagged).
 void fill_gaps(MetSeries& met, int max_gap_hours);
 
-// Physical checks after filling: mixing height > 0 m and finite; speeds finite. InputError names
-// the source, the line and the value.
-void validate_met(const MetSeries& met);
+// Physical checks after filling: mixing height > 0 m and finite; speeds finite; then every value
+// within its plausibility range (plausibility.hpp: mixing height, wind speed from the components,
+// air temperature, surface pressure), whatever reader made the series. InputError names the
+// source, the line (or record) and the value.
+void validate_met(const MetSeries& met, const PlausibilityLimits& limits = PlausibilityLimits());
 
 }  // namespace lidbox

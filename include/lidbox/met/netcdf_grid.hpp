@@ -28,6 +28,8 @@
 // chunks, nccopy(1)).
 #pragma once
 
+#include "lidbox/base/plausibility.hpp"
+
 #include <cstddef>
 #include <map>
 #include <memory>
@@ -45,6 +47,10 @@ struct GridMetOptions {
   std::map<std::string, std::string> variables;
   // extra column -> (variable name, SI unit it is converted to), e.g. precipitation -> (tp, m).
   std::map<std::string, std::pair<std::string, std::string>> fields;
+  // Every value read is checked against its range (plausibility.hpp): mixing_height, the wind
+  // components (their magnitude against wind_speed), and the fields named precipitation and
+  // wind_500hPa; other fields have no range.
+  PlausibilityLimits limits;
 };
 
 class NetcdfGrid {
@@ -79,6 +85,9 @@ class NetcdfGrid {
             std::vector<std::vector<double>>& out) const;
 
  private:
+  // InputError for the first value of column k outside its range in a slab read by read().
+  void check_slab(std::size_t k, std::size_t record0, std::size_t row0, std::size_t n_rows,
+                  const std::vector<double>& values) const;
   struct Impl;
   std::unique_ptr<Impl> impl_;
 };

@@ -69,6 +69,8 @@
 // The reader never prints; the caller runs fill_gaps() and validate_met() on the result.
 #pragma once
 
+#include "lidbox/base/plausibility.hpp"
+
 #include <map>
 #include <optional>
 #include <string>
@@ -122,6 +124,10 @@ struct NetcdfMetOptions {
   std::optional<LatLonBox> footprint;  // mean over the cells inside (excludes `point`)
   SubHourlyRule sub_hourly = SubHourlyRule::hour_mean;
   CoarseStepRule coarse = CoarseStepRule::refuse;
+  // Every value read (mixing height, wind speed or components, direction, temperature,
+  // pressure) is checked against its range per cell and record, before cell means and
+  // resampling, so that the message names the variable and the record (plausibility.hpp).
+  PlausibilityLimits limits;
 };
 
 // What the reader did, for a log line or a run's metadata.

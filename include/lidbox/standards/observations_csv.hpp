@@ -17,6 +17,10 @@
 // * A cell "<L" (L a number >= 0 in the column's unit) is a value below the detection limit L:
 //   the series has a missing value there (the averages of the standards do not invent one) and
 //   `below_detection` keeps L, so that a caller can substitute and say so (monitor_pairing.hpp).
+// * Plausibility (plausibility.hpp): every value is checked against its range; a cell equal to a
+//   declared missing-value code is a gap, counted in `missing_code_count`; an undeclared -999 is
+//   an error "<file>:<line>: column ...: monitor concentration -999 ug m-3 is outside the
+//   plausible range; expected ...".
 #pragma once
 
 #include <filesystem>
@@ -24,9 +28,27 @@
 #include <string>
 #include <string_view>
 
+#include "lidbox/base/plausibility.hpp"
 #include "lidbox/standards/standards_evaluation.hpp"
 
 namespace lidbox {
+
+// How to read monitor data beyond the format itself.
+struct ObservationsOptions {
+  // Codes the file writes for "no value" (e.g. -999, 9999), declared by the user: such cells
+  // become gaps and are counted. An undeclared code is judged as a value, so -999 is refused.
+  std::vector<double> missing_values;
+  // Ranges "monitor_concentration" and, for CO, "monitor_co" (plausibility.hpp), in ug/m3; a
+  // mole fraction is compared through its unit's factor at US reference conditions. Values
+  // below zero but within the lower bound (instrument noise) are kept as measured and counted.
+  PlausibilityLimits limits;
+};
+
+// Values below zero that were kept (instrument noise), per pollutant.
+struct SmallNegatives {
+  std::size_t count = 0;
+  double lowest = 0.0;  // in the series' unit
+};
 
 struct Observations {
   NamedSeries series;  // canonical pollutant name -> hourly series
@@ -34,10 +56,23 @@ struct Observations {
   std::map<std::string, std::vector<double>> below_detection;
   std::string path;
   std::size_t rows = 0;
+  std::map<std::string, std::size_t> missing_code_count;  // cells holding a declared code
+  std::map<std::string, SmallNegatives> small_negatives;
 };
 
-Observations parse_observations_csv(std::string_view text, std::string_view path);
-Observations read_observations_csv(const std::filesystem::path& path);
+Observations parse_observations_csv(std::string_view text, std::string_view path,
+                                    const ObservationsOptions& options = {});
+Observations read_observations_csv(const std::filesystem::path& path,
+                                   const ObservationsOptions& options = {});
+
+// "-999", "-999,9999" (each text may hold a comma-separated list) -> the codes; InputError at
+// `where` for anything that is not a number.
+std::vector<double> parse_missing_value_codes(const std::vector<std::string>& texts,
+                                              std::string_view where);
+// One sentence per thing the reader did not take as a plain value (declared missing-value codes,
+// small negatives kept as measured), so that nothing is dropped silently; "<L" cells are the
+// caller's to describe, since callers treat them differently.
+std::vector<std::string> reading_notes(const Observations& obs);
 
 // An ISO 8601 instant with an explicit offset, as accepted in the `time` column.
 // InputError naming `where` otherwise.
