@@ -103,6 +103,7 @@ void run(const ObserveArgs& a) {
               << " values below detection (\"<L\") are missing values in these tables\n";
   }
   for (const auto& note : reading_notes(obs)) std::cerr << "lidbox observe: note: " << note << "\n";
+  opt.measured_data = true;
   const auto report = compute_standards_report(obs.series, std::move(opt));
   const auto written = write_standards_report(report, out_dir);
   for (const auto& p : written) std::cout << "wrote " << p.string() << "\n";

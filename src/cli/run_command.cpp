@@ -74,8 +74,9 @@ void add_run_command(CLI::App& app, int& exit_code) {
     o.after_run = [&progress] { progress.finish(); };
     o.chart = !c.ensemble;  // drawn below with the ensemble's band
     RunWritten w = run_and_write(out, c, met, o);
-    const DiagnosticsSetup diag =
+    DiagnosticsSetup diag =
         load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
+    diag.limits = c.plausibility;
     const DiagnosticsResult days = diagnose_met(met, c.met.reading, c.met.hour_label, c.zone, diag);
     std::vector<OutputFile> files = {{"summary.txt", std::move(w.summary)}};
     append_diagnostics_outputs(files, diag, days);

@@ -127,7 +127,8 @@ DiagnosticsSetup load_diagnostics_setup(const std::string& table,
 
 HourlyDiagnosticsInput diagnostics_input(const MetSeries& met, MetReading reading, HourLabel label,
                                          const TimeZone& zone,
-                                         const std::vector<DiagnosticField>& needed) {
+                                         const std::vector<DiagnosticField>& needed,
+                                         const PlausibilityLimits& limits) {
   HourlyDiagnosticsInput in;
   in.source = met.source;
   in.standard_offset_s = zone.standard_offset_s();
@@ -159,8 +160,6 @@ HourlyDiagnosticsInput diagnostics_input(const MetSeries& met, MetReading readin
         met.source + ": column \"" + col->name + " [" + col->unit + "]\"");
     auto& out = in.field[static_cast<std::size_t>(f)];
     out.resize(n);
-    // The shipped ranges of plausibility.hpp, as for every other met value.
-    static const PlausibilityLimits limits;
     // The other winds (geostrophic, mixed-layer, transport) have no range of their own.
     const char* key = f == DiagnosticField::precipitation ? "precipitation"
                       : f == DiagnosticField::wind_500hPa ? "wind_500hPa"
@@ -176,8 +175,7 @@ HourlyDiagnosticsInput diagnostics_input(const MetSeries& met, MetReading readin
                 : std::string();
         limits.check(key, out[i],
                      met.source + line + ": column \"" + col->name + " [" + col->unit + "]\" (" +
-                         format_utc(met.stamp(i)) + ")",
-                     "", "", "the shipped range: the diagnostics do not read [plausibility]");
+                         format_utc(met.stamp(i)) + ")");
       }
     }
   }
@@ -268,7 +266,8 @@ DiagnosticsResult diagnose(const HourlyDiagnosticsInput& in, const DiagnosticsSe
 
 DiagnosticsResult diagnose_met(const MetSeries& met, MetReading reading, HourLabel label,
                                const TimeZone& zone, const DiagnosticsSetup& setup) {
-  return diagnose(diagnostics_input(met, reading, label, zone, setup.needed_fields()), setup);
+  return diagnose(
+      diagnostics_input(met, reading, label, zone, setup.needed_fields(), setup.limits), setup);
 }
 
 }  // namespace lidbox

@@ -323,7 +323,7 @@ std::string report_json(const StandardsReport& r) {
   std::ostringstream o;
   const auto& opt = r.options;
   o << "{\n";
-  o << "  \"caution\": " << js(kScreeningCaution) << ",\n";
+  o << "  \"caution\": " << js(caution_for(opt.measured_data)) << ",\n";
   o << "  \"generator\": " << js(std::string("lidbox ") + LIDBOX_VERSION) << ",\n";
   o << "  \"official\": false,\n";
   o << "  \"input\": " << js(opt.input_label) << ",\n";
@@ -375,8 +375,9 @@ namespace {
 
 void md_header(std::ostringstream& o, const StandardsReport& r) {
   const auto& opt = r.options;
-  o << "# Air-quality statistics against standards (screening estimate)\n\n";
-  o << "> **Caution.** " << kScreeningCaution << "\n\n";
+  o << "# Air-quality statistics against standards ("
+    << (opt.measured_data ? "measured data" : "screening estimate") << ")\n\n";
+  o << "> **Caution.** " << caution_for(opt.measured_data) << "\n\n";
   o << "- Input: " << md(opt.input_label) << "\n";
   o << "- Local standard time for days, months and years: UTC"
     << format_utc_offset(opt.lst_offset_s) << " (no daylight saving)\n";
@@ -544,7 +545,7 @@ std::string report_markdown(const StandardsReport& r) {
        "consecutive complete years exist, their mean.\n"
        "- Daily values are midnight-to-midnight local standard time; running means are labelled "
        "by their start hour in the tables and assigned to days as each rule says.\n";
-  o << "\n> **Caution.** " << kScreeningCaution << "\n";
+  o << "\n> **Caution.** " << caution_for(r.options.measured_data) << "\n";
   return o.str();
 }
 

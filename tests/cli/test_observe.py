@@ -11,6 +11,8 @@ import tempfile
 
 BINARY, SOURCE = sys.argv[1], sys.argv[2]
 CAUTION_START = "Screening estimate from a single well-mixed box model"
+# Monitor data are measurements: their reports carry this caution, never the model's.
+MEASURED_START = "Summary of measured data as given (no model)"
 failures = []
 
 
@@ -49,7 +51,8 @@ with tempfile.TemporaryDirectory() as tmp:
                                                  "report.json"]), "files written: %s" % names)
     if "good_report.json" in names:
         rep = json.load(open(os.path.join(out, "good_report.json")))
-        check(rep["caution"].startswith(CAUTION_START), "JSON carries the caution")
+        check(rep["caution"].startswith(MEASURED_START), "JSON carries the measured-data caution")
+        check(CAUTION_START not in json.dumps(rep), "JSON does not carry the model's caution")
         check(rep["official"] is False, "JSON says it is not official")
         eps = [e for e in rep["episodes"] if e["rule_id"] == "NO2-alert"]
         check(len(eps) == 1 and eps[0]["start_utc"] == "2025-03-02T06:00:00Z"
@@ -57,7 +60,9 @@ with tempfile.TemporaryDirectory() as tmp:
               "NO2 alert episode with lead time 30 h: %s" % eps)
         check(rep["rule_sets"][0]["id"] == "eu-2008-50", "prefix eu-2008 selects eu-2008-50")
     md = open(os.path.join(out, "good_report.md")).read() if "good_report.md" in names else ""
-    check(md.count(CAUTION_START) == 2, "Markdown carries the caution at top and bottom")
+    check(md.count(MEASURED_START) == 2, "Markdown carries the measured-data caution at top and bottom")
+    check(CAUTION_START not in md, "Markdown does not carry the model's caution")
+    check("(measured data)" in md.split("\n")[0], "Markdown title says measured data")
     check("Directive 2008/50/EC" in md, "Markdown names the legal source")
 
     # Duplicate hour: exit 2, file:line in the message, nothing written.

@@ -254,3 +254,31 @@ below = "3 m/s"
       "\"wind_10m\"?)",
       InputError);
 }
+
+TEST_CASE("the 500 hPa wind is checked against the setup's limits, so a case's table reaches it") {
+  // 160 m/s lies above the shipped 500 hPa range (0 to 150 m/s, plausibility.cpp); a case that
+  // widens the range to 200 m/s in [plausibility] must have it taken, and one that narrows it to
+  // 100 m/s must have 120 m/s refused at the hour it occurs.
+  MetSeries met;
+  met.source = "met.csv";
+  met.first_stamp_utc = 1768003200;
+  met.mixing_height_m.assign(48, 300.0);
+  met.wind_u_m_s.assign(48, 1.0);
+  met.wind_v_m_s.assign(48, 0.0);
+  met.extra.push_back({"precipitation", "mm", std::vector<double>(48, 0.0)});
+  std::vector<double> aloft(48, 10.0);
+  aloft[7] = 160.0;
+  met.extra.push_back({"wind_500hPa", "m/s", aloft});
+  DiagnosticsSetup setup = load_diagnostics_setup("", {"horton-2014"});
+  CHECK_THROWS_AS(
+      diagnose_met(met, MetReading::hour_average, HourLabel::period_start, TimeZone(), setup),
+      InputError);
+  setup.limits.set("wind_500hPa", 0.0, 200.0, "a case's [plausibility] table");
+  CHECK(diagnose_met(met, MetReading::hour_average, HourLabel::period_start, TimeZone(), setup)
+            .days.size() == 2);
+  met.extra.back().values[7] = 120.0;
+  setup.limits.set("wind_500hPa", 0.0, 100.0, "a case's [plausibility] table");
+  CHECK_THROWS_WITH_AS(
+      diagnose_met(met, MetReading::hour_average, HourLabel::period_start, TimeZone(), setup),
+      doctest::Contains("(2026-01-10T07:00:00Z): 500 hPa wind speed 120 m/s"), InputError);
+}

@@ -14,6 +14,8 @@
 // episode_min_days, counted once when it reaches that length.
 #pragma once
 
+#include "lidbox/base/plausibility.hpp"
+
 #include <array>
 #include <cstddef>
 #include <optional>
@@ -90,10 +92,12 @@ struct HourlyDiagnosticsInput {
 // column's unit by UDUNITS-2). An hour-average reading labelled at the period end is moved to
 // the hour it averages; an instantaneous value is taken for the hour that starts at its stamp.
 // Every field in `needed` must be present: otherwise an InputError naming the field, the
-// source and the columns it has.
+// source and the columns it has. Precipitation and the 500 hPa wind are checked against
+// `limits` (plausibility.hpp; a case's [plausibility] table reaches them through its limits).
 HourlyDiagnosticsInput diagnostics_input(const MetSeries& met, MetReading reading, HourLabel label,
                                          const TimeZone& zone,
-                                         const std::vector<DiagnosticField>& needed);
+                                         const std::vector<DiagnosticField>& needed,
+                                         const PlausibilityLimits& limits = PlausibilityLimits());
 
 struct DiagnosticDay {
   UtcSeconds start_utc = 0;  // 00:00 local standard time
@@ -122,6 +126,8 @@ struct SchemeSummary {
 struct DiagnosticsSetup {
   std::optional<VentilationTable> table;
   std::vector<StagnationScheme> schemes;
+  // The plausible ranges of the extra fields: the shipped ones, or a case's [plausibility].
+  PlausibilityLimits limits;
   // Every field the schemes need, each once (mixing height and 10 m wind always).
   [[nodiscard]] std::vector<DiagnosticField> needed_fields() const;
 };

@@ -48,6 +48,9 @@ struct ReportOptions {
   // Names of the input's pollutants that match no pollutant identity (pollutant.hpp), e.g. a
   // case's "fine_dust": no rule can judge them, and the report says so.
   std::vector<std::string> unknown_pollutants;
+  // The series are measurements (observe), not the box model's estimate: the reports carry
+  // kMeasuredDataCaution instead of kScreeningCaution (caution.hpp).
+  bool measured_data = false;
   std::string input_label;  // e.g. "observations obs.csv", "model run case.toml"
   std::string file_prefix;  // written files are file_prefix + name ("obs_limits.csv")
 };
