@@ -582,6 +582,138 @@ GridFileInfo file_info(const GridCase& gc, const NetcdfGrid& grid, const std::st
   return info;
 }
 
+// The hourly-series cells: the nearest cell of each chosen point, once each, in order.
+SeriesLayout series_layout(const GridCase& gc, const NetcdfGrid& grid) {
+  SeriesLayout series;
+  for (const auto& [lat, lon] : gc.grid.series)
+    series.cells.push_back(nearest_cell(grid, lat, lon));
+  std::sort(series.cells.begin(), series.cells.end());
+  series.cells.erase(std::unique(series.cells.begin(), series.cells.end()), series.cells.end());
+  return series;
+}
+
+// The files the root process writes: maps per period, and the series of chosen cells.
+struct GridOutputs {
+  std::vector<std::unique_ptr<GridMapFile>> maps;  // one per gc.grid.periods, in order
+  std::unique_ptr<GridSeriesFile> series_file;
+};
+
+GridOutputs open_grid_outputs(const GridCase& gc, const NetcdfGrid& grid, const Runner& runner,
+                              const SeriesLayout& series, const std::string& output_dir) {
+  GridOutputs out;
+  for (GridPeriod k : gc.grid.periods) {
+    out.maps.push_back(std::make_unique<GridMapFile>(
+        output_dir, std::string("maps_") + to_string(k) + ".nc",
+        file_info(gc, grid, std::string("maps per ") + to_string(k)), grid.latitude_name(),
+        grid.latitude_deg(), grid.longitude_name(), grid.longitude_deg(), runner.layout().vars));
+  }
+  if (!series.cells.empty()) {
+    const std::size_t ncol = grid.columns_per_row();
+    std::vector<double> la, lo;
+    for (std::size_t c : series.cells) {
+      la.push_back(grid.latitude_deg()[c / ncol]);
+      lo.push_back(grid.longitude_deg()[c % ncol]);
+    }
+    out.series_file = std::make_unique<GridSeriesFile>(
+        output_dir, "series.nc", file_info(gc, grid, "hourly series of chosen cells"), la, lo,
+        series.vars);
+  }
+  return out;
+}
+
+// Steps this process's cells through one chunk on T threads (each a contiguous block of cells).
+void step_chunk_on_threads(Runner& runner, const Chunk& cur, bool last, unsigned T,
+                           std::vector<PeriodMaps>& closing,
+                           const std::vector<std::size_t>& series_local,
+                           std::vector<std::vector<double>>& series_out) {
+  std::vector<std::exception_ptr> errors(T);
+  std::vector<std::thread> pool;
+  for (unsigned t = 0; t < T; ++t) {
+    const std::size_t c0 = runner.cells() * t / T, c1 = runner.cells() * (t + 1) / T;
+    pool.emplace_back([&, c0, c1, t] {
+      try {
+        runner.work(cur, c0, c1, closing, series_local, series_out);
+        if (last) runner.finish_cells(c0, c1, closing);
+      } catch (...) {
+        errors[t] = std::current_exception();
+      }
+    });
+  }
+  for (auto& th : pool) th.join();
+  for (const auto& e : errors) {
+    if (e) std::rethrow_exception(e);
+  }
+}
+
+// The chunk's closed periods and series, gathered from every process; the root writes them.
+void write_chunk(const GridCase& gc, const GridBlocks& blocks, const Runner& runner,
+                 const Chunk& cur, const std::vector<PeriodMaps>& closing,
+                 const SeriesLayout& series, const std::vector<std::vector<double>>& series_out,
+                 GridOutputs& out) {
+  const bool root = blocks.rank == 0;
+  for (const auto& pm : closing) {
+    std::vector<std::vector<double>> full;
+    for (const auto& m : pm.maps) full.push_back(gathered(blocks, m));
+    if (root) {
+      const auto k = static_cast<std::size_t>(
+          std::find(gc.grid.periods.begin(), gc.grid.periods.end(), pm.kind) -
+          gc.grid.periods.begin());
+      out.maps[k]->append(pm.period.start_utc, pm.period.end_utc, full);
+    }
+  }
+  if (series.cells.empty()) return;
+  std::vector<std::vector<double>> by_time(series.vars.size());
+  for (std::size_t v = 0; v < series.vars.size(); ++v) {
+    const auto all = gathered(blocks, series_out[v]);  // [cell][hour], cells in order
+    if (!root) continue;
+    by_time[v].resize(all.size());
+    for (std::size_t k = 0; k < series.cells.size(); ++k) {
+      for (std::size_t i = 0; i < cur.hours; ++i)
+        by_time[v][i * series.cells.size() + k] = all[k * cur.hours + i];
+    }
+  }
+  if (root) {
+    out.series_file->append(
+        runner.first_hour_utc() + static_cast<UtcSeconds>(cur.hour0) * kSecondsPerHour, cur.hours,
+        by_time);
+  }
+}
+
+// summary.txt of a grid run.
+std::string grid_summary_text(const GridCase& gc, const NetcdfGrid& grid,
+                              const GridRunSummary& S, UtcSeconds first_hour_utc) {
+  std::string t =
+      "lidbox grid: " + gc.base.file + " (" + gc.base.title + ")\n" + kScreeningCaution + "\n\n";
+  t += "met: " + grid.source() + ", " + std::to_string(S.rows) + " x " + std::to_string(S.columns) +
+       " cells (" + join(grid.column_variables()) + "), " + std::to_string(S.hours) +
+       " hours from " + format_utc(first_hour_utc) + "\n";
+  t += "each cell: " + gc.cell.pollutants[0].name + ", " +
+       (gc.grid.unit_flux ? std::string("unit flux 1 g m-2 s-1")
+                          : format_number(gc.grid.flux_g_m2_s) + " g m-2 s-1") +
+       ", box " + format_number(gc.base.footprint.x_side_m / 1000) + " x " +
+       format_number(gc.base.footprint.y_side_m / 1000) + " km; days in local standard time of " +
+       gc.base.zone.spec() + "\n";
+  t += "ran on " + std::to_string(S.threads) + " thread(s) x " + std::to_string(S.processes) +
+       " process(es), chunks of " + std::to_string(S.chunk_days) + " day(s)\n";
+  if (S.dropped_cells > 0) {
+    t += "dropped cells (missing or non-positive met; their maps are fill values): " +
+         std::to_string(S.dropped_cells) +
+         (S.first_dropped.empty() ? "" : ", first " + S.first_dropped) + "\n";
+  }
+  if (!S.chunk_note.empty()) t += "note: " + S.chunk_note + "\n";
+  t += "written:";
+  for (const auto& f : S.files) t += " " + f;
+  t += "\n";
+  return t;
+}
+
+// Threads for this process: the option, else the case, else the cores; never more than cells.
+unsigned threads_of(const GridCase& gc, const GridRunOptions& options, std::size_t cells) {
+  unsigned T = options.threads ? options.threads : gc.grid.threads;
+  if (T == 0) T = std::max(1u, std::thread::hardware_concurrency());
+  return static_cast<unsigned>(std::min<std::size_t>(T, std::max<std::size_t>(1, cells)));
+}
+
 }  // namespace
 
 GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
@@ -604,10 +736,7 @@ GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
   S.hours = runner.hours();
   S.processes = blocks.size;
   S.chunk_note = grid.chunk_note();
-  unsigned T = options.threads ? options.threads : gc.grid.threads;
-  if (T == 0) T = std::max(1u, std::thread::hardware_concurrency());
-  T = static_cast<unsigned>(std::min<std::size_t>(T, std::max<std::size_t>(1, runner.cells())));
-  S.threads = T;
+  S.threads = threads_of(gc, options, runner.cells());
   // Every process takes the same chunks (the collectives follow them); results do not depend on
   // the chunk length.
   const std::size_t bytes_per_hour =
@@ -616,45 +745,21 @@ GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
                      ? static_cast<std::size_t>(gc.grid.chunk_days)
                      : std::max<std::size_t>(1, kBudgetBytes / bytes_per_hour / 24);
   const auto bounds = runner.chunk_bounds(S.chunk_days);
-
-  SeriesLayout series;
-  for (const auto& [lat, lon] : gc.grid.series)
-    series.cells.push_back(nearest_cell(grid, lat, lon));
-  std::sort(series.cells.begin(), series.cells.end());
-  series.cells.erase(std::unique(series.cells.begin(), series.cells.end()), series.cells.end());
+  const SeriesLayout series = series_layout(gc, grid);
   const std::size_t ncol = grid.columns_per_row();
   std::vector<std::size_t> series_local;
   for (std::size_t c : series.cells) {
     if (c >= row0 * ncol && c < row1 * ncol) series_local.push_back(c - row0 * ncol);
   }
-
-  std::vector<std::unique_ptr<GridMapFile>> maps;
-  std::unique_ptr<GridSeriesFile> series_file;
-  if (root) {
-    for (GridPeriod k : gc.grid.periods) {
-      maps.push_back(std::make_unique<GridMapFile>(
-          output_dir, std::string("maps_") + to_string(k) + ".nc",
-          file_info(gc, grid, std::string("maps per ") + to_string(k)), grid.latitude_name(),
-          grid.latitude_deg(), grid.longitude_name(), grid.longitude_deg(), runner.layout().vars));
-    }
-    if (!series.cells.empty()) {
-      std::vector<double> la, lo;
-      for (std::size_t c : series.cells) {
-        la.push_back(grid.latitude_deg()[c / ncol]);
-        lo.push_back(grid.longitude_deg()[c % ncol]);
-      }
-      series_file = std::make_unique<GridSeriesFile>(
-          output_dir, "series.nc", file_info(gc, grid, "hourly series of chosen cells"), la, lo,
-          series.vars);
-    }
-  }
+  GridOutputs out;
+  if (root) out = open_grid_outputs(gc, grid, runner, series, output_dir);
 
   Chunk cur, next;
   runner.load(cur, bounds[0], bounds[1]);
   runner.prepare(cur);
   for (std::size_t j = 0; j + 1 < bounds.size(); ++j) {
     const bool last = j + 2 == bounds.size();
-    std::future<void> prefetch;
+    std::future<void> prefetch;  // the next chunk is read while this one steps
     if (!last) {
       prefetch = std::async(std::launch::async, [&runner, &next, &bounds, j] {
         runner.load(next, bounds[j + 1], bounds[j + 2]);
@@ -663,51 +768,9 @@ GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
     std::vector<PeriodMaps> closing = runner.closing(cur, last);
     std::vector<std::vector<double>> series_out(
         series.vars.size(), std::vector<double>(series_local.size() * cur.hours, kNaN));
-    std::vector<std::exception_ptr> errors(T);
-    std::vector<std::thread> pool;
-    for (unsigned t = 0; t < T; ++t) {
-      const std::size_t c0 = runner.cells() * t / T, c1 = runner.cells() * (t + 1) / T;
-      pool.emplace_back([&, c0, c1, t] {
-        try {
-          runner.work(cur, c0, c1, closing, series_local, series_out);
-          if (last) runner.finish_cells(c0, c1, closing);
-        } catch (...) {
-          errors[t] = std::current_exception();
-        }
-      });
-    }
-    for (auto& th : pool) th.join();
+    step_chunk_on_threads(runner, cur, last, S.threads, closing, series_local, series_out);
     if (prefetch.valid()) prefetch.get();
-    for (const auto& e : errors) {
-      if (e) std::rethrow_exception(e);
-    }
-    for (const auto& pm : closing) {
-      std::vector<std::vector<double>> full;
-      for (const auto& m : pm.maps) full.push_back(gathered(blocks, m));
-      if (root) {
-        const auto k = static_cast<std::size_t>(
-            std::find(gc.grid.periods.begin(), gc.grid.periods.end(), pm.kind) -
-            gc.grid.periods.begin());
-        maps[k]->append(pm.period.start_utc, pm.period.end_utc, full);
-      }
-    }
-    if (!series.cells.empty()) {
-      std::vector<std::vector<double>> by_time(series.vars.size());
-      for (std::size_t v = 0; v < series.vars.size(); ++v) {
-        const auto all = gathered(blocks, series_out[v]);  // [cell][hour], cells in order
-        if (!root) continue;
-        by_time[v].resize(all.size());
-        for (std::size_t k = 0; k < series.cells.size(); ++k) {
-          for (std::size_t i = 0; i < cur.hours; ++i)
-            by_time[v][i * series.cells.size() + k] = all[k * cur.hours + i];
-        }
-      }
-      if (root) {
-        series_file->append(
-            runner.first_hour_utc() + static_cast<UtcSeconds>(cur.hour0) * kSecondsPerHour,
-            cur.hours, by_time);
-      }
-    }
+    write_chunk(gc, blocks, runner, cur, closing, series, series_out, out);
     if (options.progress)
       options.progress(static_cast<double>(bounds[j + 1]) / static_cast<double>(runner.hours()));
     if (!last) {
@@ -719,33 +782,10 @@ GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
   for (double d : dropped) S.dropped_cells += static_cast<std::size_t>(d);
   S.first_dropped = runner.first_dropped();
   if (!root) return S;
-  for (auto& m : maps) S.files.push_back(m->close());
-  if (series_file) S.files.push_back(series_file->close());
-
-  std::string t =
-      "lidbox grid: " + gc.base.file + " (" + gc.base.title + ")\n" + kScreeningCaution + "\n\n";
-  t += "met: " + grid.source() + ", " + std::to_string(S.rows) + " x " + std::to_string(S.columns) +
-       " cells (" + join(grid.column_variables()) + "), " + std::to_string(S.hours) +
-       " hours from " + format_utc(runner.first_hour_utc()) + "\n";
-  t += "each cell: " + gc.cell.pollutants[0].name + ", " +
-       (gc.grid.unit_flux ? std::string("unit flux 1 g m-2 s-1")
-                          : format_number(gc.grid.flux_g_m2_s) + " g m-2 s-1") +
-       ", box " + format_number(gc.base.footprint.x_side_m / 1000) + " x " +
-       format_number(gc.base.footprint.y_side_m / 1000) + " km; days in local standard time of " +
-       gc.base.zone.spec() + "\n";
-  t += "ran on " + std::to_string(S.threads) + " thread(s) x " + std::to_string(S.processes) +
-       " process(es), chunks of " + std::to_string(S.chunk_days) + " day(s)\n";
-  if (S.dropped_cells > 0) {
-    t += "dropped cells (missing or non-positive met; their maps are fill values): " +
-         std::to_string(S.dropped_cells) +
-         (S.first_dropped.empty() ? "" : ", first " + S.first_dropped) + "\n";
-  }
-  if (!S.chunk_note.empty()) t += "note: " + S.chunk_note + "\n";
-  t += "written:";
-  for (const auto& f : S.files) t += " " + f;
-  t += "\n";
-  S.text = t;
-  write_output_files(output_dir, {{"summary.txt", t}});
+  for (auto& m : out.maps) S.files.push_back(m->close());
+  if (out.series_file) S.files.push_back(out.series_file->close());
+  S.text = grid_summary_text(gc, grid, S, runner.first_hour_utc());
+  write_output_files(output_dir, {{"summary.txt", S.text}});
   S.files.push_back((std::filesystem::path(output_dir) / "summary.txt").string());
   return S;
 }

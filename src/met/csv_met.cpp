@@ -3,6 +3,7 @@
 #include <charconv>
 #include <cmath>
 #include <fstream>
+#include <limits>
 #include <sstream>
 
 #include "lidbox/base/error.hpp"
@@ -121,266 +122,316 @@ struct Column {
   UnitConversion to_si;
 };
 
+const char* const kHeaderExample =
+    "a header row such as \"time,mixing_height [m],wind_speed [m/s],wind_from [deg]\"";
+
+// The first non-blank line: the header (InputError on an empty file or a huge first line).
+std::string_view header_line_of(Lines& lines, int& header_no, const std::string& display_name) {
+  std::string_view line;
+  while (lines.next(line, header_no)) {
+    if (!trim(line).empty()) break;
+    line = {};
+  }
+  if (trim(line).empty()) {
+    throw InputError(display_name, "the file is empty",
+                     std::string(kHeaderExample) + " and hourly rows");
+  }
+  // A header of column names is short; a huge first line (a file with no line breaks) is
+  // refused before it is split and copied.
+  constexpr std::size_t kMaxHeaderBytes = 65536;
+  if (line.size() > kMaxHeaderBytes) {
+    throw InputError(display_name + ":" + std::to_string(header_no),
+                     "a first line of " + std::to_string(line.size()) + " bytes (" +
+                         excerpt(line) + ")",
+                     "a header row of column names such as \"time,mixing_height [m],wind_speed "
+                     "[m/s],wind_from [deg]\", then one line per hour");
+  }
+  return line;
+}
+
+// One header cell: its role and its conversion to SI.
+Column column_of(const std::string& header, const std::vector<Column>& before,
+                 const std::string& header_where) {
+  Column col;
+  col.header = trim(header);
+  split_header(col.header, col.name, col.unit);
+  col.role = role_of(col.name);
+  const std::string where = header_where + ": column \"" + excerpt(col.header) + "\"";
+  for (const auto& other : before) {
+    if (other.name == col.name) {
+      throw InputError(where, "a second column named \"" + excerpt(col.name) + "\"",
+                       "each column name once");
+    }
+  }
+  switch (col.role) {
+    case Role::time:
+      break;
+    case Role::mixing_height:
+      col.to_si = unit_conversion(col.unit, "m", "length", where);
+      break;
+    case Role::wind_speed:
+    case Role::u:
+    case Role::v:
+      col.to_si = unit_conversion(col.unit, "m/s", "speed", where);
+      break;
+    case Role::wind_from:
+      col.to_si = direction_unit_to_degrees(col.unit, where);
+      break;
+    case Role::temperature:
+      col.to_si = unit_conversion(col.unit, "K", "temperature", where);
+      break;
+    case Role::pressure:
+      col.to_si = unit_conversion(col.unit, "Pa", "pressure", where);
+      break;
+    case Role::extra:
+      if (col.name.empty()) throw InputError(where, "an empty column name", "a name");
+      break;
+  }
+  return col;
+}
+
+bool has_role(const std::vector<Column>& cols, Role r) {
+  for (const auto& c : cols) {
+    if (c.role == r) return true;
+  }
+  return false;
+}
+
+// Refuses a header without time, mixing height or one complete wind (speed and direction, or
+// u and v); returns the time column.
+std::size_t check_columns(const std::vector<Column>& cols, std::string_view header_line,
+                          const std::string& header_where) {
+  std::string found;
+  for (const auto& c : cols) found += (found.empty() ? "" : ", ") + c.header;
+  found = excerpt(found);
+  std::size_t time_col = cols.size();
+  for (std::size_t c = 0; c < cols.size(); ++c) {
+    if (cols[c].role == Role::time) time_col = c;
+  }
+  if (time_col == cols.size()) {
+    throw InputError(header_where,
+                     "no \"time\" column (found: " + found + ")" + separator_hint(header_line),
+                     "a column named time holding ISO 8601 times");
+  }
+  if (!has_role(cols, Role::mixing_height)) {
+    throw InputError(header_where, "no mixing height column (found: " + found + ")",
+                     "a column \"mixing_height [unit]\"");
+  }
+  const bool polar = has_role(cols, Role::wind_speed) || has_role(cols, Role::wind_from);
+  const bool cartesian = has_role(cols, Role::u) || has_role(cols, Role::v);
+  if (polar && cartesian) {
+    throw InputError(header_where, "both speed/direction and u/v wind columns",
+                     "either wind_speed and wind_from, or eastward_wind and northward_wind");
+  }
+  if (polar ? !(has_role(cols, Role::wind_speed) && has_role(cols, Role::wind_from))
+            : !(has_role(cols, Role::u) && has_role(cols, Role::v))) {
+    throw InputError(header_where, "no complete wind (found: " + found + ")",
+                     "columns \"wind_speed [unit]\" and \"wind_from [deg]\", or "
+                     "\"eastward_wind [unit]\" and \"northward_wind [unit]\"");
+  }
+  return time_col;
+}
+
+// The rows of a met CSV after its header, into a MetSeries. Cells are views into the file's
+// text; message texts are built only for an error.
+class RowReader {
+ public:
+  RowReader(std::vector<Column> cols, std::size_t time_col, const CsvMetOptions& options,
+            const std::string& display_name)
+      : cols_(std::move(cols)), time_col_(time_col), options_(options),
+        display_name_(display_name),
+        limits_(options.limits ? *options.limits : shipped_),
+        polar_(has_role(cols_, Role::wind_speed)),
+        has_t_(has_role(cols_, Role::temperature)),
+        has_p_(has_role(cols_, Role::pressure)) {
+    met_.source = display_name;
+    for (const auto& c : cols_) {
+      if (c.role == Role::extra) met_.extra.push_back({c.name, c.unit, {}});
+    }
+  }
+
+  void row(std::string_view line, int line_no) {
+    line_no_ = line_no;
+    split(line);
+    const UtcSeconds t = time_of_row();
+    previous_ = t;
+    any_ = true;
+    values();
+  }
+
+  MetSeries finish() {
+    if (met_.size() < 2) {
+      throw InputError(display_name_, std::to_string(met_.size()) + " data rows",
+                       "at least two hourly rows");
+    }
+    fill_gaps(met_, options_.max_gap_hours);
+    return std::move(met_);
+  }
+
+ private:
+  [[nodiscard]] std::string where() const {
+    return display_name_ + ":" + std::to_string(line_no_);
+  }
+
+  void split(std::string_view line) {
+    cells_.clear();
+    if (line.find('"') != std::string_view::npos) {
+      quoted_ = split_csv_row(std::string(line), where());
+      for (const auto& q : quoted_) cells_.emplace_back(q);
+    } else {
+      std::size_t start = 0;
+      for (;;) {
+        const std::size_t comma = line.find(',', start);
+        if (comma == std::string_view::npos) {
+          cells_.push_back(line.substr(start));
+          break;
+        }
+        cells_.push_back(line.substr(start, comma - start));
+        start = comma + 1;
+      }
+    }
+    if (cells_.size() != cols_.size()) {
+      throw InputError(where(), std::to_string(cells_.size()) + " fields",
+                       std::to_string(cols_.size()) + " fields as in the header");
+    }
+  }
+
+  // The row's time, checked against the previous row; missing hours before it become gaps.
+  UtcSeconds time_of_row() {
+    UtcSeconds t = 0;
+    if (!quick_utc(trim(cells_[time_col_]), t)) {
+      t = parse_iso8601(trim(cells_[time_col_]), options_.zone_for_naive_times, where());
+    }
+    if (!any_) {
+      met_.first_stamp_utc = t;
+      return t;
+    }
+    if (t == previous_) {
+      throw InputError(where(), "time " + format_utc(t) + " repeats the previous row",
+                       "strictly increasing hourly times");
+    }
+    if (t < previous_) {
+      throw InputError(
+          where(), "time " + format_utc(t) + " is before the previous row's " + format_utc(previous_),
+          "strictly increasing hourly times");
+    }
+    if ((t - previous_) % kSecondsPerHour != 0) {
+      throw InputError(where(),
+                       "time " + format_utc(t) + " is off the hourly grid of " +
+                           format_utc(met_.first_stamp_utc),
+                       "times a whole number of hours apart");
+    }
+    // The gap rule is applied here first, before a missing hour is allocated, so that a row in
+    // the year 9999 after one in 2026 is refused at once rather than after 70 million rows.
+    const long long missing = (t - previous_) / kSecondsPerHour - 1;
+    if (missing > options_.max_gap_hours) {
+      throw InputError(where(),
+                       "a gap of " + std::to_string(missing) + " hours (" +
+                           format_utc(previous_ + kSecondsPerHour) + " to " +
+                           format_utc(t - kSecondsPerHour) + ")",
+                       "gaps of at most " + std::to_string(options_.max_gap_hours) +
+                           " hours (set [met] max_gap_hours to fill longer gaps, or split the "
+                           "run)");
+    }
+    // Missing stamps become gaps for the fill rule (source line 0: no line of the file).
+    for (UtcSeconds g = previous_ + kSecondsPerHour; g < t; g += kSecondsPerHour) {
+      for (auto& e : met_.extra) e.values.push_back(kNaN);
+      push_hour(kNaN, kNaN, kNaN, kNaN, kNaN, 0);
+    }
+    return t;
+  }
+
+  // The hour's fields other than the extra columns (those are pushed as they are read).
+  void push_hour(double h, double u, double v, double temp, double pres, int line) {
+    met_.mixing_height_m.push_back(h);
+    met_.wind_u_m_s.push_back(u);
+    met_.wind_v_m_s.push_back(v);
+    if (has_t_) met_.air_temperature_K.push_back(temp);
+    if (has_p_) met_.surface_pressure_Pa.push_back(pres);
+    met_.source_line.push_back(line);
+  }
+
+  // A cell's value in SI (extra columns as written); NaN for an empty cell.
+  double cell_value(const Column& col, std::string_view cell) const {
+    double value = kNaN;
+    if (cell.empty()) return value;
+    if (!parse_cell(cell, value)) {
+      throw InputError(where() + ": column \"" + col.header + "\"",
+                       "\"" + excerpt(cell) + "\" is not a number",
+                       "a decimal number, or an empty cell for a missing value");
+    }
+    return col.role == Role::extra ? value : col.to_si(value);
+  }
+
+  // The row's values, each checked against its plausible range, appended to the series.
+  void values() {
+    double h = kNaN, speed = kNaN, from = kNaN, u = kNaN, v = kNaN, temp = kNaN, pres = kNaN;
+    std::size_t extra_i = 0;
+    for (std::size_t c = 0; c < cols_.size(); ++c) {
+      const Column& col = cols_[c];
+      if (col.role == Role::time) continue;
+      const std::string_view cell = trim(cells_[c]);
+      const double value = cell_value(col, cell);
+      // The message is built only for a value outside its range (NaN passes: a gap).
+      const auto check = [&](const char* key) {
+        const PlausibleRange& r = limits_.range(key);
+        if (!(value < r.min || value > r.max)) return;
+        limits_.check(key, value, where() + ": column \"" + col.header + "\"", std::string(cell),
+                      col.unit);
+      };
+      switch (col.role) {
+        case Role::mixing_height: check("mixing_height"); h = value; break;
+        case Role::wind_speed: check("wind_speed"); speed = value; break;
+        case Role::wind_from: check("wind_from"); from = value; break;
+        case Role::u: u = value; break;
+        case Role::v: v = value; break;
+        case Role::temperature: check("air_temperature"); temp = value; break;
+        case Role::pressure: check("surface_pressure"); pres = value; break;
+        case Role::extra: met_.extra[extra_i++].values.push_back(value); break;
+        case Role::time: break;
+      }
+    }
+    if (polar_ && !std::isnan(speed) && !std::isnan(from)) wind_components(speed, from, u, v);
+    push_hour(h, u, v, temp, pres, line_no_);
+  }
+
+  static constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+  std::vector<Column> cols_;
+  std::size_t time_col_;
+  const CsvMetOptions& options_;
+  std::string display_name_;
+  PlausibilityLimits shipped_;
+  const PlausibilityLimits& limits_;
+  bool polar_, has_t_, has_p_;
+  MetSeries met_;
+  UtcSeconds previous_ = 0;
+  bool any_ = false;
+  int line_no_ = 0;
+  std::vector<std::string_view> cells_;
+  std::vector<std::string> quoted_;
+};
+
 }  // namespace
 
 MetSeries parse_met_csv(const std::string& text, const CsvMetOptions& options,
                         const std::string& display_name) {
   refuse_cr_only_lines(text, display_name);
   Lines lines(strip_utf8_bom(text));
-  std::string_view header_line;
   int header_no = 0;
-  bool have_header = false;
-  while (lines.next(header_line, header_no)) {
-    if (!trim(header_line).empty()) {
-      have_header = true;
-      break;
-    }
-  }
-  if (!have_header) {
-    throw InputError(display_name, "the file is empty",
-                     "a header row such as \"time,mixing_height [m],wind_speed [m/s],wind_from "
-                     "[deg]\" and hourly rows");
-  }
+  const std::string_view header_line = header_line_of(lines, header_no, display_name);
   const std::string header_where = display_name + ":" + std::to_string(header_no);
-  // A header of column names is short; a huge first line (a file with no line breaks) is
-  // refused before it is split and copied.
-  constexpr std::size_t kMaxHeaderBytes = 65536;
-  if (header_line.size() > kMaxHeaderBytes) {
-    throw InputError(header_where,
-                     "a first line of " + std::to_string(header_line.size()) + " bytes (" +
-                         excerpt(header_line) + ")",
-                     "a header row of column names such as \"time,mixing_height [m],wind_speed "
-                     "[m/s],wind_from [deg]\", then one line per hour");
-  }
-  const std::vector<std::string> headers = split_csv_row(std::string(header_line), header_where);
   std::vector<Column> cols;
-  int time_col = -1;
-  for (std::size_t c = 0; c < headers.size(); ++c) {
-    Column col;
-    col.header = trim(headers[c]);
-    split_header(col.header, col.name, col.unit);
-    col.role = role_of(col.name);
-    const std::string where = header_where + ": column \"" + excerpt(col.header) + "\"";
-    for (const auto& other : cols) {
-      if (other.name == col.name) {
-        throw InputError(where, "a second column named \"" + excerpt(col.name) + "\"",
-                         "each column name once");
-      }
-    }
-    switch (col.role) {
-      case Role::time:
-        time_col = static_cast<int>(c);
-        break;
-      case Role::mixing_height:
-        col.to_si = unit_conversion(col.unit, "m", "length", where);
-        break;
-      case Role::wind_speed:
-      case Role::u:
-      case Role::v:
-        col.to_si = unit_conversion(col.unit, "m/s", "speed", where);
-        break;
-      case Role::wind_from:
-        col.to_si = direction_unit_to_degrees(col.unit, where);
-        break;
-      case Role::temperature:
-        col.to_si = unit_conversion(col.unit, "K", "temperature", where);
-        break;
-      case Role::pressure:
-        col.to_si = unit_conversion(col.unit, "Pa", "pressure", where);
-        break;
-      case Role::extra:
-        if (col.name.empty()) throw InputError(where, "an empty column name", "a name");
-        break;
-    }
-    cols.push_back(col);
+  for (const auto& h : split_csv_row(std::string(header_line), header_where)) {
+    cols.push_back(column_of(h, cols, header_where));
   }
-  auto has = [&](Role r) {
-    for (const auto& c : cols) {
-      if (c.role == r) return true;
-    }
-    return false;
-  };
-  std::string found;
-  for (const auto& c : cols) found += (found.empty() ? "" : ", ") + c.header;
-  found = excerpt(found);
-  if (time_col < 0) {
-    throw InputError(header_where,
-                     "no \"time\" column (found: " + found + ")" + separator_hint(header_line),
-                     "a column named time holding ISO 8601 times");
-  }
-  if (!has(Role::mixing_height)) {
-    throw InputError(header_where, "no mixing height column (found: " + found + ")",
-                     "a column \"mixing_height [unit]\"");
-  }
-  const bool polar = has(Role::wind_speed) || has(Role::wind_from);
-  const bool cartesian = has(Role::u) || has(Role::v);
-  if (polar && cartesian) {
-    throw InputError(header_where, "both speed/direction and u/v wind columns",
-                     "either wind_speed and wind_from, or eastward_wind and northward_wind");
-  }
-  if (polar ? !(has(Role::wind_speed) && has(Role::wind_from))
-            : !(has(Role::u) && has(Role::v))) {
-    throw InputError(header_where, "no complete wind (found: " + found + ")",
-                     "columns \"wind_speed [unit]\" and \"wind_from [deg]\", or "
-                     "\"eastward_wind [unit]\" and \"northward_wind [unit]\"");
-  }
-
-  MetSeries met;
-  met.source = display_name;
-  const bool has_t = has(Role::temperature);
-  const bool has_p = has(Role::pressure);
-  for (const auto& c : cols) {
-    if (c.role == Role::extra) met.extra.push_back({c.name, c.unit, {}});
-  }
-  const double nan = std::nan("");
-  const PlausibilityLimits shipped;
-  const PlausibilityLimits& limits = options.limits ? *options.limits : shipped;
-  UtcSeconds previous = 0;
-  bool any = false;
-  // The rows: cells are views into the file's text, the message texts are built only for an
-  // error.
-  std::vector<std::string_view> cells;
-  std::vector<std::string> quoted;
+  const std::size_t time_col = check_columns(cols, header_line, header_where);
+  RowReader rows(std::move(cols), time_col, options, display_name);
   std::string_view line;
   int line_no = 0;
   while (lines.next(line, line_no)) {
-    if (trim(line).empty()) continue;
-    const auto where = [&display_name, &line_no] {
-      return display_name + ":" + std::to_string(line_no);
-    };
-    cells.clear();
-    if (line.find('"') != std::string_view::npos) {
-      quoted = split_csv_row(std::string(line), where());
-      for (const auto& q : quoted) cells.emplace_back(q);
-    } else {
-      std::size_t start = 0;
-      for (;;) {
-        const std::size_t comma = line.find(',', start);
-        if (comma == std::string_view::npos) {
-          cells.push_back(line.substr(start));
-          break;
-        }
-        cells.push_back(line.substr(start, comma - start));
-        start = comma + 1;
-      }
-    }
-    if (cells.size() != cols.size()) {
-      throw InputError(where(), std::to_string(cells.size()) + " fields",
-                       std::to_string(cols.size()) + " fields as in the header");
-    }
-    UtcSeconds t = 0;
-    if (!quick_utc(trim(cells[time_col]), t)) {
-      t = parse_iso8601(trim(cells[time_col]), options.zone_for_naive_times, where());
-    }
-    if (any) {
-      if (t == previous) {
-        throw InputError(where(), "time " + format_utc(t) + " repeats the previous row",
-                         "strictly increasing hourly times");
-      }
-      if (t < previous) {
-        throw InputError(
-            where(),
-            "time " + format_utc(t) + " is before the previous row's " + format_utc(previous),
-            "strictly increasing hourly times");
-      }
-      if ((t - previous) % kSecondsPerHour != 0) {
-        throw InputError(where(),
-                         "time " + format_utc(t) + " is off the hourly grid of " +
-                             format_utc(met.first_stamp_utc),
-                         "times a whole number of hours apart");
-      }
-      // The gap rule is applied here first, before a missing hour is allocated, so that a row
-      // in the year 9999 after one in 2026 is refused at once rather than after 70 million rows.
-      const long long missing = (t - previous) / kSecondsPerHour - 1;
-      if (missing > options.max_gap_hours) {
-        throw InputError(where(),
-                         "a gap of " + std::to_string(missing) + " hours (" +
-                             format_utc(previous + kSecondsPerHour) + " to " +
-                             format_utc(t - kSecondsPerHour) + ")",
-                         "gaps of at most " + std::to_string(options.max_gap_hours) +
-                             " hours (set [met] max_gap_hours to fill longer gaps, or split the "
-                             "run)");
-      }
-      // Missing stamps become gaps for the fill rule.
-      for (UtcSeconds g = previous + kSecondsPerHour; g < t; g += kSecondsPerHour) {
-        met.mixing_height_m.push_back(nan);
-        met.wind_u_m_s.push_back(nan);
-        met.wind_v_m_s.push_back(nan);
-        if (has_t) met.air_temperature_K.push_back(nan);
-        if (has_p) met.surface_pressure_Pa.push_back(nan);
-        for (auto& e : met.extra) e.values.push_back(nan);
-        met.source_line.push_back(0);
-      }
-    } else {
-      met.first_stamp_utc = t;
-    }
-    previous = t;
-    any = true;
-    double h = nan, speed = nan, from = nan, u = nan, v = nan, temp = nan, pres = nan;
-    std::size_t extra_i = 0;
-    for (std::size_t c = 0; c < cols.size(); ++c) {
-      const Column& col = cols[c];
-      if (col.role == Role::time) continue;
-      const std::string_view cell_view = trim(cells[c]);
-      const auto cell = [&cell_view] { return std::string(cell_view); };
-      double value = nan;
-      if (!cell_view.empty()) {
-        if (!parse_cell(cell_view, value)) {
-          throw InputError(where() + ": column \"" + col.header + "\"",
-                           "\"" + excerpt(cell_view) + "\" is not a number",
-                           "a decimal number, or an empty cell for a missing value");
-        }
-        if (col.role != Role::extra) value = col.to_si(value);
-      }
-      const auto cw = [&] { return where() + ": column \"" + col.header + "\""; };
-      switch (col.role) {
-        case Role::mixing_height:
-          limits.check("mixing_height", value, cw(), cell(), col.unit);
-          h = value;
-          break;
-        case Role::wind_speed:
-          limits.check("wind_speed", value, cw(), cell(), col.unit);
-          speed = value;
-          break;
-        case Role::wind_from:
-          limits.check("wind_from", value, cw(), cell(), col.unit);
-          from = value;
-          break;
-        case Role::u:
-          u = value;
-          break;
-        case Role::v:
-          v = value;
-          break;
-        case Role::temperature:
-          limits.check("air_temperature", value, cw(), cell(), col.unit);
-          temp = value;
-          break;
-        case Role::pressure:
-          limits.check("surface_pressure", value, cw(), cell(), col.unit);
-          pres = value;
-          break;
-        case Role::extra:
-          met.extra[extra_i++].values.push_back(value);
-          break;
-        case Role::time:
-          break;
-      }
-    }
-    if (polar && !std::isnan(speed) && !std::isnan(from)) wind_components(speed, from, u, v);
-    met.mixing_height_m.push_back(h);
-    met.wind_u_m_s.push_back(u);
-    met.wind_v_m_s.push_back(v);
-    if (has_t) met.air_temperature_K.push_back(temp);
-    if (has_p) met.surface_pressure_Pa.push_back(pres);
-    met.source_line.push_back(line_no);
+    if (!trim(line).empty()) rows.row(line, line_no);
   }
-  if (met.size() < 2) {
-    throw InputError(display_name, std::to_string(met.size()) + " data rows",
-                     "at least two hourly rows");
-  }
-  fill_gaps(met, options.max_gap_hours);
-  return met;
+  return rows.finish();
 }
 
 MetSeries read_met_csv(const std::string& path, const CsvMetOptions& options,

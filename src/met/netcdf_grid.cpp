@@ -63,6 +63,35 @@ const Var* coordinate_of(const File& f, const Var& data, std::size_t pos, bool l
   return c;
 }
 
+// Refuses a time axis that is not hourly on whole UTC hours without gaps.
+void check_hourly_axis(const File& f, const netcdf::TimeAxis& axis) {
+  for (std::size_t i = 0; i < axis.t.size(); ++i) {
+    const bool step_ok = i == 0 || axis.t[i] - axis.t[i - 1] == kSecondsPerHour;
+    if (axis.t[i] % kSecondsPerHour != 0 || !step_ok) {
+      throw InputError(
+          f.path() + ": variable " + quoted(axis.variable),
+          "record " + std::to_string(i + 1) + " at " + format_utc(axis.t[i]) +
+              (step_ok ? ", not on a whole hour" : ", not one hour after the record before"),
+          "hourly records on whole UTC hours without gaps for a grid run (fill or resample with "
+          "cdo or nco first)");
+    }
+  }
+}
+
+// A note on speed when the file is chunked one map per time step ("" otherwise).
+std::string chunk_note_of(const File& f, const Var& first, std::size_t records) {
+  const auto chunks = f.chunk_sizes(first);
+  if (chunks.empty() || chunks[0] != 1 || records <= 1) return "";
+  return f.path() + ": variable " + quoted(first.name) +
+         " is chunked one map per time step (chunks " + f.dims_text(first) + " -> " +
+         join({std::to_string(chunks[0]), std::to_string(chunks[1]), std::to_string(chunks[2])},
+              " x ") +
+         "); it runs, but every block of cells reads every chunk: for speed, copy it with longer "
+         "time chunks, e.g. nccopy -c " +
+         f.dim_name(first.dims[0]) + "/720," + f.dim_name(first.dims[1]) + "/16," +
+         f.dim_name(first.dims[2]) + "/16 in.nc out.nc";
+}
+
 }  // namespace
 
 NetcdfGrid::NetcdfGrid(const std::string& path, const GridMetOptions& options)
@@ -118,17 +147,7 @@ NetcdfGrid::NetcdfGrid(const std::string& path, const GridMetOptions& options)
   m.lat_name = lat->name;
   m.lon_name = lon->name;
   const netcdf::TimeAxis axis = netcdf::read_time_axis(f, first.dims[0], nullptr, false);
-  for (std::size_t i = 0; i < axis.t.size(); ++i) {
-    const bool step_ok = i == 0 || axis.t[i] - axis.t[i - 1] == kSecondsPerHour;
-    if (axis.t[i] % kSecondsPerHour != 0 || !step_ok) {
-      throw InputError(
-          f.path() + ": variable " + quoted(axis.variable),
-          "record " + std::to_string(i + 1) + " at " + format_utc(axis.t[i]) +
-              (step_ok ? ", not on a whole hour" : ", not one hour after the record before"),
-          "hourly records on whole UTC hours without gaps for a grid run (fill or resample with "
-          "cdo or nco first)");
-    }
-  }
+  check_hourly_axis(f, axis);
   m.first = axis.t.front();
   m.records = axis.t.size();
   m.limits = options.limits;
@@ -142,18 +161,7 @@ NetcdfGrid::NetcdfGrid(const std::string& path, const GridMetOptions& options)
     m.conv.push_back(
         unit_conversion(units, to[k], to[k] == "m" ? "length" : "speed", f.where(*m.vars[k])));
   }
-  const auto chunks = f.chunk_sizes(first);
-  if (!chunks.empty() && chunks[0] == 1 && m.records > 1) {
-    m.note =
-        f.path() + ": variable " + quoted(first.name) +
-        " is chunked one map per time step (chunks " + f.dims_text(first) + " -> " +
-        join({std::to_string(chunks[0]), std::to_string(chunks[1]), std::to_string(chunks[2])},
-             " x ") +
-        "); it runs, but every block of cells reads every chunk: for speed, copy it with longer "
-        "time chunks, e.g. nccopy -c " +
-        f.dim_name(first.dims[0]) + "/720," + f.dim_name(first.dims[1]) + "/16," +
-        f.dim_name(first.dims[2]) + "/16 in.nc out.nc";
-  }
+  m.note = chunk_note_of(f, first, m.records);
 }
 
 NetcdfGrid::~NetcdfGrid() = default;
