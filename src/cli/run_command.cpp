@@ -38,6 +38,33 @@ void append_section(std::vector<OutputFile>& files, const std::string& name,
     if (f.name == name) f.content += text;
   }
 }
+// chart.svg when the ensemble's band must be drawn (a single run's is written with the run),
+// and the bulletin with that chart inline.
+void add_chart_and_bulletin(std::vector<OutputFile>& files, const CaseSpec& c, const RunWritten& w,
+                            const EnsembleOutcome* ens, const EmissionCut* cut,
+                            const DiagnosticsSetup& diag, const DiagnosticsResult& days,
+                            const BulletinTemplates& templates) {
+  RunChartInput chart;
+  chart.c = &c;
+  chart.r = &w.result;
+  chart.standards = w.standards ? &*w.standards : nullptr;
+  chart.ensemble = ens ? &ens->percentiles : nullptr;
+  chart.issue_time_utc = w.issue_time_utc;
+  BulletinInput b;
+  b.c = &c;
+  b.r = &w.result;
+  b.standards = chart.standards;
+  b.ensemble = ens;
+  b.cut = cut;
+  b.days = &days;
+  b.diagnostics = &diag;
+  b.issue_time_utc = w.issue_time_utc;
+  // The same chart as chart.svg; with an ensemble, chart.svg is this one (with the band).
+  b.chart_svg = render_run_chart_svg(chart);
+  if (ens) files.push_back({"chart.svg", b.chart_svg});
+  b.templates = &templates;
+  for (auto& f : render_bulletin(b)) files.push_back(std::move(f));
+}
 }  // namespace
 
 void add_run_command(CLI::App& app, int& exit_code) {
@@ -95,26 +122,8 @@ void add_run_command(CLI::App& app, int& exit_code) {
       append_section(files, "summary.txt", render_cut_summary(c, *cut));
       files.push_back({"cut.csv", render_cut_csv(c, *cut)});
     }
-    RunChartInput chart;
-    chart.c = &c;
-    chart.r = &w.result;
-    chart.standards = w.standards ? &*w.standards : nullptr;
-    chart.ensemble = ens ? &ens->percentiles : nullptr;
-    chart.issue_time_utc = w.issue_time_utc;
-    BulletinInput b;
-    b.c = &c;
-    b.r = &w.result;
-    b.standards = chart.standards;
-    b.ensemble = ens ? &*ens : nullptr;
-    b.cut = cut ? &*cut : nullptr;
-    b.days = &days;
-    b.diagnostics = &diag;
-    b.issue_time_utc = w.issue_time_utc;
-    // The same chart as chart.svg; with an ensemble, chart.svg is this one (with the band).
-    b.chart_svg = render_run_chart_svg(chart);
-    if (ens) files.push_back({"chart.svg", b.chart_svg});
-    b.templates = &templates;
-    for (auto& f : render_bulletin(b)) files.push_back(std::move(f));
+    add_chart_and_bulletin(files, c, w, ens ? &*ens : nullptr, cut ? &*cut : nullptr, diag, days,
+                           templates);
     for (const auto& f : files) out.write_whole(f.name, f.content);
     const auto written = out.publish();
     if (!opt->quiet) {
