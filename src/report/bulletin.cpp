@@ -55,6 +55,7 @@ const std::map<std::string, std::vector<std::string>>& bulletin_template_fields(
       {"cut_none", {}},
       {"section_timeline", {}},
       {"timeline_none", {}},
+      {"timeline_more", {"more"}},
       {"section_validity", {}},
       {"validity", validity},
       {"section_caution", {}},
@@ -432,7 +433,7 @@ std::vector<BulletinTimelineRow> timeline(const Context& x) {
   std::sort(eps.begin(), eps.end(),
             [](const Episode* a, const Episode* b) { return a->start_utc < b->start_utc; });
   const double span = std::max<double>(1.0, static_cast<double>(x.to - x.from));
-  // The first 40 episodes; a long run keeps them all in episodes.csv.
+  // The first 40 episodes; a long run keeps them all in episodes.csv (timeline_more says so).
   if (eps.size() > 40) eps.resize(40);
   for (const Episode* e : eps) {
     const IndexCategory* cat = category_between(x, e->start_utc, e->end_utc);
@@ -481,6 +482,10 @@ Bulletin build_bulletin(const BulletinInput& in) {
   b.timeline_heading = x.say("section_timeline");
   b.timeline_none = x.say("timeline_none");
   b.timeline = timeline(x);
+  if (in.standards && in.standards->episodes.size() > b.timeline.size()) {
+    b.timeline_more = x.say(
+        "timeline_more", {{"more", std::to_string(in.standards->episodes.size() - b.timeline.size())}});
+  }
   for (const HourRecord& h : x.r.hours) {
     const CivilTime lt = x.c.zone.civil(h.start_utc);
     if (lt.hour != 0) continue;
@@ -601,7 +606,9 @@ void html_timeline(std::ostringstream& o, const Bulletin& b) {
       << html_escape(t.duration_h) << "</td><td>" << html_escape(t.peak) << "</td><td>"
       << html_escape(t.probability) << "</td></tr>\n";
   }
-  o << "</table></section>\n";
+  o << "</table>";
+  if (!b.timeline_more.empty()) o << "<p>" << html_escape(b.timeline_more) << "</p>";
+  o << "</section>\n";
 }
 
 }  // namespace
@@ -656,6 +663,7 @@ std::string bulletin_markdown(const Bulletin& b) {
       o << "| " << md_cell(t.level) << " | " << md_cell(t.pollutant) << " | " << t.start << " | "
         << t.end << " | " << t.duration_h << " | " << md_cell(t.peak) << " | " << t.probability << " |\n";
     }
+    if (!b.timeline_more.empty()) o << "\n" << b.timeline_more << "\n";
   }
   sections(b.closing);
   o << "\n## " << b.caution_heading << "\n\n" << kScreeningCaution << "\n";
@@ -709,6 +717,7 @@ std::string bulletin_text(const Bulletin& b) {
                 ", peak " + t.peak + ", likelihood " + t.probability,
          "- ", "  ");
   }
+  if (!b.timeline_more.empty()) wrap(o, b.timeline_more, "", "");
   sections(b.closing);
   o << "\n" << b.caution_heading << "\n" << std::string(b.caution_heading.size(), '-') << "\n";
   wrap(o, kScreeningCaution, "", "");

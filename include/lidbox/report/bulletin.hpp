@@ -74,6 +74,7 @@ struct Bulletin {
   std::string category, category_colour;  // the worst category of the chosen index ("" none)
   std::vector<BulletinSection> sections;  // before the timeline
   std::string timeline_heading, timeline_none;
+  std::string timeline_more;  // the first 40 episodes are listed; this names the rest ("" none)
   std::vector<BulletinTimelineRow> timeline;
   std::vector<std::pair<double, std::string>> day_ticks;  // local midnights: fraction, "01-14"
   std::vector<BulletinSection> closing;  // validity
