@@ -6,10 +6,15 @@
 #include <memory>
 #include <set>
 
+#include "lidbox/base/concentration_units.hpp"
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/plausibility.hpp"
+#include "lidbox/base/text.hpp"
+#include "lidbox/base/time.hpp"
 #include "lidbox/met/met_series.hpp"
 #include "lidbox/met/netcdf_met.hpp"
 #include "lidbox/report/netcdf_writer.hpp"
+#include "lidbox/standards/pollutant.hpp"
 #include "netcdf_options.hpp"
 
 namespace lidbox::cli {
@@ -90,8 +95,41 @@ std::string standard_name_for(const std::string& key, const std::string& unit) {
   return "";
 }
 
+// Measured values are checked against the plausible ranges (plausibility.hpp) as the monitor
+// CSV reader checks them: mass concentrations as read, mole fractions through the pollutant's
+// molar mass at the EU reference conditions. A variable named by the user in a unit of its own
+// has no range and is dumped as read.
+void check_concentrations(const std::string& file,
+                          const std::vector<std::pair<std::string, HourlySeries>>& series) {
+  const PlausibilityLimits limits;
+  for (const auto& [k, s] : series) {
+    const PollutantInfo* info = find_pollutant(k);
+    double to_ug_m3 = 1.0;
+    if (s.unit == "ppb" && info && info->molar_mass_g_mol > 0.0) {
+      to_ug_m3 = 1e6 * parse_concentration_unit("ppb", info->molar_mass_g_mol,
+                                                kEuReferenceConditions, file)
+                           .to_g_m3;
+    } else if (s.unit != "ug m-3") {
+      continue;
+    }
+    const char* key = info && std::string_view(info->name) == "CO" ? "monitor_co"
+                                                                    : "monitor_concentration";
+    const PlausibleRange& r = limits.range(key);
+    for (std::size_t i = 0; i < s.size(); ++i) {
+      const double x = s.values[i] * to_ug_m3;
+      if (!(x < r.min || x > r.max)) continue;
+      limits.check(key, x,
+                   file + ": variable " + k + " (" + format_utc(s.hour_start(i)) + ")",
+                   format_number(s.values[i]), s.unit,
+                   "declare a missing-value code with the variable's _FillValue or "
+                   "missing_value attribute");
+    }
+  }
+}
+
 void dump_concentrations(const MetDumpArgs& a) {
   const auto series = read_concentrations_netcdf(a.input, netcdf_met_options(a.nc));
+  check_concentrations(a.input, series);
   // Fill and missing values of monitor data are gaps: counted here, never dropped silently.
   for (const auto& [k, s] : series) {
     std::size_t missing = 0;

@@ -271,6 +271,28 @@ nc_kind("netcdf: all fill", lambda p: netcdf_met(p, fill_all=True),
 nc_kind("netcdf: mixing height 1e30", lambda p: netcdf_met(p, blh=with_value(2, 1e30, 300.0)),
         ["met.nc: variable \"blh\"", "record 3", "is outside the plausible range",
          "expected a mixing height from 0 to 10000 m"])
+def netcdf_pm25(path, value):
+    """Monitor PM2.5 in CF-NetCDF, 30 hours of 12 ug m-3 and one hour of `value`, no fill value."""
+    d = netCDF4.Dataset(path, "w")
+    d.createDimension("time", 30)
+    t = d.createVariable("time", "f8", ("time",))
+    t.units = "hours since 2026-01-12 00:00:00"
+    t.standard_name = "time"
+    t[:] = np.arange(30)
+    v = d.createVariable("pm25", "f4", ("time",), fill_value=False)
+    v.units = "ug m-3"
+    v.standard_name = "mass_concentration_of_pm2p5_ambient_aerosol_particles_in_air"
+    v[:] = with_value(6, value, 12.0)
+    d.close()
+
+
+if HAVE_NETCDF:
+    # An undeclared 9999 in measured NetCDF data: the monitor range applies as in the CSV reader.
+    kind("netcdf monitor: undeclared 9999", {"obs.nc": lambda p: netcdf_pm25(p, 9999.0)},
+         ["met-dump", "--concentrations", "obs.nc", "--to-netcdf", "OUT"],
+         ["obs.nc: variable pm2p5 (2026-01-12T06:00:00Z)", "9999 ug m-3",
+          "expected a monitor concentration from -5 to 5000 ug/m3"])
+
 kind("netcdf: not NetCDF", {"case.toml": NC_CASE, "met.nc": "this is text\n"},
      ["run", "case.toml", "-o", "OUT"], ["met.nc", "not readable as NetCDF", "expected a NetCDF-3 or NetCDF-4 file"])
 kind("netcdf: path is a folder", {"case.toml": NC_CASE, "met.nc": None},
