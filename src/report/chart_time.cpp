@@ -213,33 +213,12 @@ NiceAxis nice_axis(double lo, double hi) {
 }
 
 std::string zone_display_name(const TimeZone& zone) {
-  const std::string& s = zone.spec();
-  if (zone.from_tz_database()) return s;
-  const std::string offset =
-      "UTC" +
-      (zone.standard_offset_s() == 0 ? std::string() : format_utc_offset(zone.standard_offset_s()));
-  // A POSIX rule starts with its abbreviation: letters, or anything in angle brackets.
-  const auto abbreviation = [&s](std::size_t& k) {
-    std::string a;
-    if (k < s.size() && s[k] == '<') {
-      const std::size_t e = s.find('>', k);
-      if (e == std::string::npos) return a;
-      a = s.substr(k + 1, e - k - 1);
-      k = e + 1;
-      return a;
-    }
-    while (k < s.size() && std::isalpha(static_cast<unsigned char>(s[k]))) a += s[k++];
-    return a;
-  };
-  std::size_t k = 0;
-  const std::string standard = abbreviation(k);
-  if (standard.empty() || standard == "UTC" || standard == "Z") return offset;
-  while (k < s.size() && (std::isdigit(static_cast<unsigned char>(s[k])) || s[k] == '+' ||
-                          s[k] == '-' || s[k] == ':')) {
-    ++k;
-  }
-  const std::string daylight = abbreviation(k);
-  return standard + (daylight.empty() ? "" : "/" + daylight) + ", " + offset + " standard";
+  // The zone's own name (TimeZone::display_name); a POSIX rule adds its standard offset, which
+  // its abbreviations alone do not tell.
+  const std::string name = zone.display_name();
+  if (zone.from_tz_database() || name.rfind("UTC", 0) == 0) return name;
+  const int off = zone.standard_offset_s();
+  return name + ", UTC" + (off == 0 ? std::string() : format_utc_offset(off)) + " standard";
 }
 
 }  // namespace lidbox
