@@ -28,13 +28,6 @@ std::string part_name(const CaseSpec& c, std::size_t j) {
   return c.sectors[j - 2].name;
 }
 
-std::string local_stamp(UtcSeconds t, const TimeZone& zone) {
-  const CivilTime c = zone.civil(t);
-  char b[40];
-  std::snprintf(b, sizeof b, "%04d-%02d-%02d %02d:%02d", c.year, c.month, c.day, c.hour, c.minute);
-  return b;
-}
-
 double hours_from_start(const RunResult& r, UtcSeconds t) {
   return static_cast<double>(t - r.hours.front().start_utc) / kSecondsPerHour;
 }
@@ -60,8 +53,7 @@ void mark_issue_time(svg::Writer& w, const TimeCanvas& t, const RunChartInput& i
   if (!in.issue_time_utc) return;
   const double h = hours_from_start(*in.r, *in.issue_time_utc);
   if (h < 0.0 || h > static_cast<double>(in.r->hours.size())) return;
-  draw_mark(w, t, p, h,
-            labelled ? "issued " + local_stamp(*in.issue_time_utc, in.c->zone) + " local" : "");
+  draw_mark(w, t, p, h, labelled ? "issued " + format_local(*in.issue_time_utc, in.c->zone) : "");
 }
 
 void lid_and_wind_panel(svg::Writer& w, const TimeCanvas& t, const RunChartInput& in, double y) {

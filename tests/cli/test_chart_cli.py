@@ -73,7 +73,7 @@ with tempfile.TemporaryDirectory() as tmp:
         svg = check_chart(os.path.join(out, "chart.svg"), "5-day forecast", 300_000, 20)
         check("ensemble p5-p95 (12 members)" in svg, "forecast: the ensemble band is labelled")
         check("ensemble median" in svg, "forecast: the ensemble median is drawn")
-        check("issued 2026-02-09 14:00 local" in svg, "forecast: the issue time is marked")
+        check("issued 2026-02-09 14:00 MST" in svg, "forecast: the issue time is marked")
         check("eu-2008-50 day: 50 ug m-3" in svg, "forecast: the EU daily PM10 limit is labelled")
         check("Tue 02-10" in svg, "forecast: days are labelled with their weekday")
         check(">06:00<" in svg, "forecast: local hours are labelled")
