@@ -16,6 +16,7 @@
 #include "lidbox/base/work_meter.hpp"
 #include "lidbox/report/chart.hpp"
 #include "lidbox/report/run_netcdf.hpp"
+#include "report/row_pipe.hpp"
 
 namespace lidbox {
 
@@ -37,7 +38,9 @@ double in_unit(const PollutantSpec& p, double g_m3) {
 
 }  // namespace
 
-void write_hourly_csv(TextFile& f, const CaseSpec& c, const RunResult& r) {
+namespace {
+
+void write_hourly_header(TextFile& f, const CaseSpec& c, std::size_t n_parts) {
   f.text(
       "period_start_utc,period_end_utc,period_start_local,period_end_local,mixing_height [m],"
       "wind_speed [m/s],wind_from [deg],ventilation_coefficient [m2/s],flushing_time [h],"
@@ -46,31 +49,106 @@ void write_hourly_csv(TextFile& f, const CaseSpec& c, const RunResult& r) {
     const std::string u = " [" + unit_of(p) + "]";
     f.ch(',').text(p.name).text("_hour_mean").text(u).ch(',').text(p.name).text("_end_of_hour");
     f.text(u).ch(',').text(p.name).text("_residual_end_of_hour").text(u);
-    for (std::size_t j = 0; j < r.n_parts; ++j) {
+    for (std::size_t j = 0; j < n_parts; ++j) {
       f.ch(',').text(p.name).text("_part_").text(part_name(c, j)).text(u);
     }
   }
   f.ch('\n');
+}
+
+// An hourly.csv row as numbers: 13 fields of the hour, then per pollutant its total, end-of-hour
+// mixed and residual values and its parts, in the pollutant's reporting unit.
+constexpr std::size_t kHourFields = 13;
+std::size_t hourly_row_width(const RunResult& r) {
+  return kHourFields + r.n_pollutants * (3 + r.n_parts);
+}
+
+void fill_hourly_row(const CaseSpec& c, const RunResult& r, std::size_t i, double* row) {
+  const HourRecord& h = r.hours[i];
   const std::size_t n = r.hours.size();
-  for (std::size_t i = 0; i < n; ++i) {
-    const HourRecord& h = r.hours[i];
-    const UtcSeconds end = h.start_utc + kSecondsPerHour;
-    // The offset at the end of hour i is the one at the start of hour i + 1.
-    const int end_offset = i + 1 < n ? r.hours[i + 1].civil_offset_s : c.zone.civil_offset_s(end);
-    f.utc(h.start_utc).ch(',').utc(end).ch(',').with_offset(h.start_utc, h.civil_offset_s).ch(',');
-    f.with_offset(end, end_offset).ch(',').number(h.mixing_height_m).ch(',');
-    f.number(h.wind_speed_m_s, 5).ch(',').number(h.wind_from_deg, 5).ch(',');
-    f.number(h.ventilation_m2_s, 6).ch(',').number(h.flushing_time_h, 5).ch(',');
-    f.number(h.residual_top_m).ch(',').ch(h.filled ? '1' : '0').ch(',');
-    f.ch(h.calm_floor ? '1' : '0').ch(',').ch(h.lid_floor ? '1' : '0').ch(',').integer(h.substeps);
-    for (std::size_t p = 0; p < r.n_pollutants; ++p) {
-      const PollutantSpec& ps = c.pollutants[p];
-      f.ch(',').number(in_unit(ps, r.total(i, p))).ch(',');
-      f.number(in_unit(ps, r.end_mixed(i, p))).ch(',').number(in_unit(ps, r.end_residual(i, p)));
-      for (std::size_t j = 0; j < r.n_parts; ++j) f.ch(',').number(in_unit(ps, r.mean(i, p, j)));
+  const UtcSeconds end = h.start_utc + kSecondsPerHour;
+  // The offset at the end of hour i is the one at the start of hour i + 1.
+  const int end_offset = i + 1 < n ? r.hours[i + 1].civil_offset_s : c.zone.civil_offset_s(end);
+  const double head[kHourFields] = {static_cast<double>(h.start_utc),
+                                    static_cast<double>(h.civil_offset_s),
+                                    static_cast<double>(end_offset),
+                                    h.mixing_height_m,
+                                    h.wind_speed_m_s,
+                                    h.wind_from_deg,
+                                    h.ventilation_m2_s,
+                                    h.flushing_time_h,
+                                    h.residual_top_m,
+                                    h.filled ? 1.0 : 0.0,
+                                    h.calm_floor ? 1.0 : 0.0,
+                                    h.lid_floor ? 1.0 : 0.0,
+                                    static_cast<double>(h.substeps)};
+  std::copy(head, head + kHourFields, row);
+  double* v = row + kHourFields;
+  for (std::size_t p = 0; p < r.n_pollutants; ++p) {
+    const PollutantSpec& ps = c.pollutants[p];
+    *v++ = in_unit(ps, r.total(i, p));
+    *v++ = in_unit(ps, r.end_mixed(i, p));
+    *v++ = in_unit(ps, r.end_residual(i, p));
+    for (std::size_t j = 0; j < r.n_parts; ++j) *v++ = in_unit(ps, r.mean(i, p, j));
+  }
+}
+
+void write_hourly_rows(TextFile& f, std::size_t n_pollutants, std::size_t n_parts,
+                       const double* rows, std::size_t n_rows) {
+  const std::size_t width = kHourFields + n_pollutants * (3 + n_parts);
+  for (std::size_t k = 0; k < n_rows; ++k) {
+    const double* x = rows + k * width;
+    const auto start = static_cast<UtcSeconds>(x[0]);
+    const UtcSeconds end = start + kSecondsPerHour;
+    f.utc(start).ch(',').utc(end).ch(',').with_offset(start, static_cast<int>(x[1])).ch(',');
+    f.with_offset(end, static_cast<int>(x[2])).ch(',').number(x[3]).ch(',');
+    f.number(x[4], 5).ch(',').number(x[5], 5).ch(',');
+    f.number(x[6], 6).ch(',').number(x[7], 5).ch(',');
+    f.number(x[8]).ch(',').ch(x[9] != 0.0 ? '1' : '0').ch(',');
+    f.ch(x[10] != 0.0 ? '1' : '0').ch(',').ch(x[11] != 0.0 ? '1' : '0').ch(',');
+    f.integer(static_cast<long long>(x[12]));
+    const double* v = x + kHourFields;
+    for (std::size_t p = 0; p < n_pollutants; ++p) {
+      f.ch(',').number(v[0]).ch(',').number(v[1]).ch(',').number(v[2]);
+      for (std::size_t j = 0; j < n_parts; ++j) f.ch(',').number(v[3 + j]);
+      v += 3 + n_parts;
     }
     f.ch('\n');
   }
+}
+
+}  // namespace
+
+void write_hourly_csv(TextFile& f, const CaseSpec& c, const RunResult& r) {
+  write_hourly_header(f, c, r.n_parts);
+  std::vector<double> row(hourly_row_width(r));
+  for (std::size_t i = 0; i < r.hours.size(); ++i) {
+    fill_hourly_row(c, r, i, row.data());
+    write_hourly_rows(f, r.n_pollutants, r.n_parts, row.data(), 1);
+  }
+}
+
+HourlyStream::HourlyStream(OutputFolder& folder, const CaseSpec& c) : folder_(folder), c_(c) {}
+
+HourlyStream::~HourlyStream() = default;
+
+void HourlyStream::hour(const RunResult& r, std::size_t i) {
+  if (i == 0) {
+    csv_ = std::make_unique<TextFile>(folder_, "hourly.csv");
+    write_hourly_header(*csv_, c_, r.n_parts);
+    pipe_ = std::make_unique<RowPipe>(
+        hourly_row_width(r),
+        [f = csv_.get(), P = r.n_pollutants, J = r.n_parts](const double* rows, std::size_t n) {
+          write_hourly_rows(*f, P, J, rows, n);
+        });
+  }
+  fill_hourly_row(c_, r, i, pipe_->row());
+}
+
+void HourlyStream::close() {
+  if (!pipe_) throw InternalError("an hourly stream closed before its first hour");
+  pipe_->close();
+  csv_->close();
 }
 
 namespace {
@@ -82,20 +160,43 @@ const char* kBudgetHeader =
     "residual_advected_out [g/h],vented_aloft [g/h],mixed_layer_mass [g],residual_layer_mass [g],"
     "cumulative_closure [g]\n";
 
-// The rows of hour i, one per pollutant; closure_g_m2[p] is the cumulative closure after it.
-void write_budget_rows(TextFile& f, const CaseSpec& c, const RunResult& r, std::size_t i,
-                       const double* closure_g_m2) {
+// A budget.csv hour as numbers: its start, then per pollutant the 14 lines and masses over the
+// footprint [g/h, g] and the cumulative closure [g] (closure_g_m2[p], after the hour).
+constexpr std::size_t kBudgetValues = 15;
+std::size_t budget_row_width(std::size_t n_pollutants) {
+  return 1 + n_pollutants * kBudgetValues;
+}
+
+void fill_budget_row(const CaseSpec& c, const RunResult& r, std::size_t i,
+                     const double* closure_g_m2, double* row) {
   const double A = c.footprint.area_m2();
+  row[0] = static_cast<double>(r.hours[i].start_utc);
+  double* v = row + 1;
   for (std::size_t p = 0; p < r.n_pollutants; ++p) {
     const BudgetTerms& b = r.budget_of(i, p);
-    f.utc(r.hours[i].start_utc).ch(',').text(c.pollutants[p].name);
-    for (double v : {b.emitted, b.advected_in, b.advected_out, b.reacted, b.deposited,
+    for (double x : {b.emitted, b.advected_in, b.advected_out, b.reacted, b.deposited,
                      b.entrained_from_residual, b.entrained_from_free_troposphere, b.detrained,
                      b.residual_reacted, b.residual_advected_in, b.residual_advected_out,
                      b.vented_aloft, r.mixed_mass(i, p), r.residual_mass(i, p)}) {
-      f.ch(',').number(v * A, 10);
+      *v++ = x * A;
     }
-    f.ch(',').scientific(closure_g_m2[p] * A, 3).ch('\n');
+    *v++ = closure_g_m2[p] * A;
+  }
+}
+
+// The rows of each hour, one per pollutant.
+void write_budget_rows(TextFile& f, const CaseSpec& c, const double* rows, std::size_t n_rows) {
+  const std::size_t P = c.pollutants.size();
+  const std::size_t width = budget_row_width(P);
+  for (std::size_t k = 0; k < n_rows; ++k) {
+    const double* x = rows + k * width;
+    const auto start = static_cast<UtcSeconds>(x[0]);
+    for (std::size_t p = 0; p < P; ++p) {
+      const double* v = x + 1 + p * kBudgetValues;
+      f.utc(start).ch(',').text(c.pollutants[p].name);
+      for (std::size_t j = 0; j + 1 < kBudgetValues; ++j) f.ch(',').number(v[j], 10);
+      f.ch(',').scientific(v[kBudgetValues - 1], 3).ch('\n');
+    }
   }
 }
 
@@ -104,8 +205,10 @@ void write_budget_rows(TextFile& f, const CaseSpec& c, const RunResult& r, std::
 void write_budget_csv(TextFile& f, const CaseSpec& c, const RunResult& r) {
   const std::vector<double> closure = r.closure_series_g_m2(c.engine.residual_layer);
   f.text(kBudgetHeader);
+  std::vector<double> row(budget_row_width(r.n_pollutants));
   for (std::size_t i = 0; i < r.hours.size(); ++i) {
-    write_budget_rows(f, c, r, i, closure.data() + i * r.n_pollutants);
+    fill_budget_row(c, r, i, closure.data() + i * r.n_pollutants, row.data());
+    write_budget_rows(f, c, row.data(), 1);
   }
 }
 
@@ -120,6 +223,10 @@ void BudgetStream::hour(const RunResult& r, std::size_t i) {
   if (i == 0) {
     csv_ = std::make_unique<TextFile>(folder_, "budget.csv");
     csv_->text(kBudgetHeader);
+    pipe_ = std::make_unique<RowPipe>(
+        budget_row_width(P), [f = csv_.get(), &c = c_](const double* rows, std::size_t n) {
+          write_budget_rows(*f, c, rows, n);
+        });
     closure_.assign(P, 0.0);
     if (netcdf_) {
       nc_ = std::make_unique<CfStreamWriter>(folder_.staged("budget.nc").string(),
@@ -130,7 +237,7 @@ void BudgetStream::hour(const RunResult& r, std::size_t i) {
     }
   }
   for (std::size_t p = 0; p < P; ++p) closure_[p] = r.closure_latest_g_m2(i, p);
-  write_budget_rows(*csv_, c_, r, i, closure_.data());
+  fill_budget_row(c_, r, i, closure_.data(), pipe_->row());
   if (nc_) {
     budget_hour_values(c_, r, i, closure_.data(), row_.data());
     const std::size_t k = i - block_first_;
@@ -146,6 +253,7 @@ void BudgetStream::hour(const RunResult& r, std::size_t i) {
 
 void BudgetStream::close() {
   if (!csv_) throw InternalError("a budget stream closed before its first hour");
+  pipe_->close();
   csv_->close();
   if (nc_) {
     nc_->close();
@@ -260,17 +368,19 @@ void run_on_two_threads(const std::vector<std::function<void()>>& tasks) {
 
 std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
                               const RunResult& r, const StandardsReport* standards, bool netcdf,
-                              CfFileFormat format, bool chart) {
+                              CfFileFormat format, bool chart, bool hourly_streamed) {
   std::string summary = render_summary(c, met, r, standards);
   std::vector<std::function<void()>> tasks;
   // NetCDF-C is not thread-safe: its files are one task. The longest tasks go first.
   if (netcdf)
     tasks.emplace_back([&] { write_run_netcdf_outputs(folder, c, r, standards, format); });
-  tasks.emplace_back([&] {
-    TextFile f(folder, "hourly.csv");
-    write_hourly_csv(f, c, r);
-    f.close();
-  });
+  if (!hourly_streamed) {
+    tasks.emplace_back([&] {
+      TextFile f(folder, "hourly.csv");
+      write_hourly_csv(f, c, r);
+      f.close();
+    });
+  }
   if (!r.budget_streamed) {
     tasks.emplace_back([&] {
       TextFile f(folder, "budget.csv");
@@ -308,19 +418,26 @@ std::optional<UtcSeconds> run_issue_time(const CaseSpec& c,
 
 RunWritten run_and_write(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
                          const RunWriteOptions& options) {
+  // The budget and the hourly table are written while the box steps, each formatted on a
+  // thread of its own: the budget is not kept, and neither table waits for the run's end.
   BudgetStream budget(folder, c, options.netcdf, options.format);
+  HourlyStream hourly(folder, c);
   RunStreaming streaming;
   streaming.keep_budget = false;
-  streaming.on_hour = [&budget](const RunResult& r, std::size_t i) { budget.hour(r, i); };
+  streaming.on_hour = [&budget, &hourly](const RunResult& r, std::size_t i) {
+    budget.hour(r, i);
+    hourly.hour(r, i);
+  };
   RunWritten out;
   out.result = run_case(c, met, options.progress, streaming);
   budget.close();
+  hourly.close();
   if (options.after_run) options.after_run();
   out.standards = run_standards(c, out.result, options.issue_time);
   out.issue_time_utc = run_issue_time(c, options.issue_time);
   const StandardsReport* standards = out.standards ? &*out.standards : nullptr;
   out.summary = write_run_outputs(folder, c, met, out.result, standards, options.netcdf,
-                                  options.format, false);
+                                  options.format, false, true);
   // Drawn here rather than among the tables so that a command-line issue time reaches it
   // without standards too; it costs little (tests/bench/chart.sh).
   if (options.chart) {

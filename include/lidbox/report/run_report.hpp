@@ -18,10 +18,31 @@
 
 namespace lidbox {
 
+class RowPipe;  // src/report/row_pipe.hpp: rows formatted and written on a thread of their own
+
 // hourly.csv: one row per hour (period start/end in UTC and local civil time; met used with
 // flags; ventilation coefficient; flushing time; per pollutant the hour mean, end-of-hour mixed
 // and residual values and the parts from the background, the initial state and each sector).
 void write_hourly_csv(TextFile& f, const CaseSpec& c, const RunResult& r);
+// hourly.csv written while the run steps (hour() is called from the run's HourObserver): each
+// hour's numbers are copied into blocks that a second thread formats and writes, so the table
+// costs the stepping thread little and memory stays bounded. The same bytes as write_hourly_csv.
+class HourlyStream {
+ public:
+  HourlyStream(OutputFolder& folder, const CaseSpec& c);
+  ~HourlyStream();
+  HourlyStream(const HourlyStream&) = delete;
+  HourlyStream& operator=(const HourlyStream&) = delete;
+  void hour(const RunResult& r, std::size_t i);
+  // After the last hour: waits for the writer and completes the file.
+  void close();
+
+ private:
+  OutputFolder& folder_;
+  const CaseSpec& c_;
+  std::unique_ptr<TextFile> csv_;
+  std::unique_ptr<RowPipe> pipe_;  // declared after csv_: stopped before the file is dropped
+};
 // budget.csv: one row per hour and pollutant, every budget line in g/h over the footprint, the
 // masses at the end of the hour in g and the cumulative closure in g.
 void write_budget_csv(TextFile& f, const CaseSpec& c, const RunResult& r);
@@ -45,6 +66,7 @@ class BudgetStream {
   bool netcdf_;
   CfFileFormat format_;
   std::unique_ptr<TextFile> csv_;
+  std::unique_ptr<RowPipe> pipe_;  // budget.csv's rows, formatted on a thread of their own
   std::unique_ptr<CfStreamWriter> nc_;
   std::vector<double> closure_;  // [p] after the latest hour
   std::size_t per_hour_ = 0;     // NetCDF values per hour
@@ -58,8 +80,8 @@ class BudgetStream {
 std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunResult& r,
                            const StandardsReport* standards = nullptr);
 // Every file of a run into `folder` (published by the caller) except summary.txt, whose text is
-// returned for the caller to complete and write: hourly.csv, budget.csv (unless the run streamed
-// it), chart.svg (chart.hpp; unless `chart` is false, for a caller that draws it later with
+// returned for the caller to complete and write: hourly.csv (unless `hourly_streamed`: an
+// HourlyStream wrote it), budget.csv (unless the run streamed it), chart.svg (chart.hpp; unless `chart` is false, for a caller that draws it later with
 // more, such as an ensemble's band), then the standards tables and reports (limits.csv,
 // daily.csv, periods.csv, aqi.csv, aqhi.csv, episodes.csv, report.md, report.json) when given,
 // and the NetCDF files (run_netcdf.hpp) with `netcdf`. Independent files are written on two
@@ -67,7 +89,7 @@ std::string render_summary(const CaseSpec& c, const MetSeries& met, const RunRes
 std::string write_run_outputs(OutputFolder& folder, const CaseSpec& c, const MetSeries& met,
                               const RunResult& r, const StandardsReport* standards, bool netcdf,
                               CfFileFormat format = CfFileFormat::netcdf4_classic,
-                              bool chart = true);
+                              bool chart = true, bool hourly_streamed = false);
 
 // The forecast issue time a run's outputs use: the override (command line), else the case's
 // [standards] issue_time, else none.
