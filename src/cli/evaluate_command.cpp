@@ -4,18 +4,23 @@
 #include <filesystem>
 #include <iostream>
 #include <memory>
+#include <optional>
 #include <sstream>
 
 #include "lidbox/analysis/calibrated_case.hpp"
 #include "lidbox/analysis/ensemble_verification.hpp"
 #include "lidbox/analysis/model_evaluation.hpp"
+#include "lidbox/analysis/run_standards.hpp"
 #include "lidbox/analysis/sector_fit.hpp"
 #include "lidbox/base/atomic_file.hpp"
 #include "lidbox/base/error.hpp"
 #include "lidbox/base/text.hpp"
 #include "lidbox/engine/case_file.hpp"
+#include "lidbox/diagnostics/daily_diagnostics.hpp"
 #include "lidbox/engine/run.hpp"
+#include "lidbox/report/bulletin.hpp"
 #include "lidbox/report/evaluation_report.hpp"
+#include "lidbox/report/run_report.hpp"
 #include "lidbox/standards/observations_csv.hpp"
 #include "lidbox/standards/rule_set.hpp"
 #include "progress.hpp"
@@ -220,6 +225,32 @@ void fit_and_calibrate(const CaseSpec& c, const RunResult& r, const std::vector<
   files.push_back({in.calibrated_case_name, cal.text});
 }
 
+// The bulletin of the evaluated run, with what the monitors measured beside the model, the
+// evaluation's time series chart inline, and the run's diagnostics as the outlook's reasons.
+void add_bulletin(const CaseSpec& c, const MetSeries& met, const RunResult& r,
+                  const EvaluationReportInput& in, const EnsembleOutcome* ens,
+                  const BulletinTemplates& templates, std::vector<OutputFile>& files) {
+  const std::optional<StandardsReport> standards = run_standards(c, r, std::nullopt);
+  DiagnosticsSetup diag =
+      load_diagnostics_setup(c.diagnostics.ventilation_table, c.diagnostics.schemes);
+  diag.limits = c.plausibility;
+  const DiagnosticsResult days = diagnose_met(met, c.met.reading, c.met.hour_label, c.zone, diag);
+  BulletinInput b;
+  b.c = &c;
+  b.r = &r;
+  b.standards = standards ? &*standards : nullptr;
+  b.ensemble = ens;
+  b.days = &days;
+  b.diagnostics = &diag;
+  b.monitors = &in.monitors;
+  b.issue_time_utc = run_issue_time(c, std::nullopt);
+  for (const auto& f : files) {
+    if (f.name == "timeseries.svg") b.chart_svg = f.content;
+  }
+  b.templates = &templates;
+  for (auto& f : render_bulletin(b)) files.push_back(std::move(f));
+}
+
 void run(const EvaluateArgs& a) {
   const CaseSpec c = load_case(a.case_file);
   EvaluationReportInput in;
@@ -229,6 +260,8 @@ void run(const EvaluateArgs& a) {
       read_monitor_files(a.monitors, a.missing_values, notes);
   const std::vector<RuleSet> rules = rules_for(c, a);
   const MetSeries met = read_case_met(c);
+  // Read before the run, so that a bad wording file stops it at once and writes nothing.
+  const BulletinTemplates templates = load_bulletin_templates(c.bulletin_templates);
   Progress progress;
   const RunResult r =
       run_case(c, met, [&progress](double f, const char* s) { progress.update(f, s); });
@@ -239,13 +272,13 @@ void run(const EvaluateArgs& a) {
   for (const auto& rs : rules) in.rule_set_ids.push_back(rs.id);
   pair_monitors(c, r, observations, a, in);
   in.before = evaluate_run(c, r, in.monitors, rules);
+  std::optional<EnsembleOutcome> ens;
   if (c.ensemble) {
     // The members' daily probabilities per rule against the monitors' own day calls.
-    const EnsembleOutcome ens =
-        forecast_ensemble(c, met, rules, [&progress](double f) { progress.update(f, "ensemble"); });
+    ens = forecast_ensemble(c, met, rules, [&progress](double f) { progress.update(f, "ensemble"); });
     progress.finish();
-    in.ensemble_members = ens.members.size();
-    in.ensemble = verify_ensemble(in.before, ens.rules, a.seed);
+    in.ensemble_members = ens->members.size();
+    in.ensemble = verify_ensemble(in.before, ens->rules, a.seed);
   }
   const std::string dir = a.output_dir.empty()
                               ? (std::filesystem::path("outputs") / (c.name + "-evaluate")).string()
@@ -255,6 +288,7 @@ void run(const EvaluateArgs& a) {
   if (!a.fit.empty()) fit_and_calibrate(c, r, rules, a, dir, design, in, files);
   auto rendered = render_evaluation_outputs(in);
   files.insert(files.begin(), rendered.begin(), rendered.end());
+  add_bulletin(c, met, r, in, ens ? &*ens : nullptr, templates, files);
   const auto written = write_output_files(dir, files);
   for (const auto& note : notes) std::cerr << "lidbox evaluate: note: " << note << "\n";
   if (!a.quiet) {

@@ -59,6 +59,10 @@ const std::map<std::string, std::vector<std::string>>& bulletin_template_fields(
       {"section_validity", {}},
       {"validity", validity},
       {"section_caution", {}},
+      {"section_monitors", {}},
+      {"monitor",
+       {"monitor", "pollutant", "peak", "unit", "peak_time", "modelled", "pairs", "mean_observed",
+        "mean_modelled"}},
   };
   return fields;
 }
@@ -387,6 +391,36 @@ BulletinSection sources(const Context& x, std::size_t p) {
   return s;
 }
 
+// Each monitor's highest measured hour beside the model's value then, and both means over the
+// monitor's paired hours (the monitors' own numbers: measured, not modelled).
+BulletinSection monitors(const Context& x) {
+  BulletinSection s{x.say("section_monitors"), {}};
+  for (const MonitorPollutant& m : *x.in.monitors) {
+    const std::vector<double> model = model_total(x.c, x.r, m.case_index);
+    std::size_t peak = m.observed.size(), pairs = 0;
+    double sum_o = 0.0, sum_m = 0.0;
+    for (std::size_t i = 0; i < m.observed.size() && i < model.size(); ++i) {
+      if (std::isnan(m.observed[i])) continue;
+      ++pairs;
+      sum_o += m.observed[i];
+      sum_m += model[i];
+      if (peak == m.observed.size() || m.observed[i] > m.observed[peak]) peak = i;
+    }
+    if (pairs == 0) continue;
+    s.items.push_back(x.say(
+        "monitor", {{"monitor", m.label},
+                    {"pollutant", m.pollutant},
+                    {"peak", num(m.observed[peak], 4)},
+                    {"unit", m.unit},
+                    {"peak_time", x.local(x.r.hours[peak].start_utc)},
+                    {"modelled", num(model[peak], 4)},
+                    {"pairs", std::to_string(pairs)},
+                    {"mean_observed", num(sum_o / static_cast<double>(pairs), 4)},
+                    {"mean_modelled", num(sum_m / static_cast<double>(pairs), 4)}}));
+  }
+  return s;
+}
+
 // A cut as people read it: rounded UP to 0.1 % so that the printed cut suffices (cut_report).
 std::string cut_percent(double scale) {
   const double cut = std::ceil((1.0 - scale) * 1000.0 - 1e-9) / 10.0;
@@ -479,6 +513,7 @@ Bulletin build_bulletin(const BulletinInput& in) {
   if (worst) b.sections.push_back(health(x, worst));
   b.sections.push_back(sources(x, p));
   if (e || in.cut) b.sections.push_back(cuts(x, e));
+  if (in.monitors && !in.monitors->empty()) b.sections.push_back(monitors(x));
   b.timeline_heading = x.say("section_timeline");
   b.timeline_none = x.say("timeline_none");
   b.timeline = timeline(x);

@@ -66,8 +66,22 @@ with tempfile.TemporaryDirectory() as tmp:
     check(rc == 0, "evaluate exits 0: " + se)
     names = sorted(os.listdir(out)) if os.path.isdir(out) else []
     check(names == sorted(["evaluation.md", "statistics.csv", "pairs.csv", "profiles.csv", "verification.csv",
-                           "verification_days.csv", "timeseries.svg", "scatter.svg", "summary.txt"]),
+                           "verification_days.csv", "timeseries.svg", "scatter.svg", "summary.txt",
+                           "bulletin.html", "bulletin.md", "bulletin.txt"]),
           "files: %s" % names)
+    # The bulletin of an evaluated run names what the monitor measured beside the model: the
+    # monitor's highest hour (computed here from the file written above) and the model's hour
+    # mean then, from hourly.csv, both with 4 significant digits (%.4g).
+    bmd = open(os.path.join(out, "bulletin.md")).read() if "bulletin.md" in names else ""
+    pm_obs = [(float(r.split(",")[1]), k) for k, r in enumerate(rows[2:])
+              if r.split(",")[1] not in ("", "<2")]
+    peak, at = max(pm_obs)
+    modelled = float(hourly[at]["PM25_hour_mean [ug m-3]"])
+    check("NOT AN OFFICIAL ALERT" in bmd and "What the monitors measured" in bmd,
+          "evaluate writes a bulletin with a monitors section, never an official alert")
+    check("mon (PM2.5): highest hour measured %.4g ug m-3" % peak in bmd
+          and "when the model gave %.4g ug m-3" % modelled in bmd,
+          "the monitor's highest hour %.4g and the model's %.4g in the bulletin:\n%s" % (peak, modelled, bmd))
     check("mon PM2.5: 167 pairs (0 monitor hours outside the run, 1 missing, 1 below detection, 1 negative kept)"
           in so, "pair counts printed: " + so)
     check("mon.csv: O3 (not in the case)" in open(os.path.join(out, "evaluation.md")).read(),

@@ -9,7 +9,8 @@
 // diagnostics room); who is at risk and what to do (from the index file's category); the main
 // source sectors (shares of the parts at the peak hour); what cutting each would achieve (the
 // [cut] table's exact cut, when the case has one); the alert timeline; issue time and validity;
-// the not-official line and the caution.
+// the not-official line and the caution. With monitors (lidbox evaluate), a section of what they
+// measured beside what the model gave.
 //
 // The wording is data: src/data/bulletin/en.toml (README there), a case's [bulletin] templates
 // names another file. A template naming a field it may not use is an InputError at its line.
@@ -25,6 +26,7 @@
 
 #include "lidbox/analysis/emission_cut.hpp"
 #include "lidbox/analysis/ensemble_statistics.hpp"
+#include "lidbox/analysis/monitor_pairing.hpp"
 #include "lidbox/base/atomic_file.hpp"
 #include "lidbox/diagnostics/daily_diagnostics.hpp"
 #include "lidbox/engine/case_file.hpp"
@@ -53,6 +55,9 @@ struct BulletinInput {
   const EmissionCut* cut = nullptr;
   const DiagnosticsResult* days = nullptr;      // the outlook's reasons
   const DiagnosticsSetup* diagnostics = nullptr;
+  // Monitors paired with the run (lidbox evaluate): what they measured beside what the model
+  // gave, at each monitor's highest hour and on average over its paired hours.
+  const std::vector<MonitorPollutant>* monitors = nullptr;
   std::optional<UtcSeconds> issue_time_utc;     // none: the first hour of the run
   std::string chart_svg;                        // embedded in the HTML
   const BulletinTemplates* templates = nullptr;
