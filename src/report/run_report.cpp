@@ -430,8 +430,6 @@ RunWritten run_and_write(OutputFolder& folder, const CaseSpec& c, const MetSerie
   };
   RunWritten out;
   out.result = run_case(c, met, options.progress, streaming);
-  budget.close();
-  hourly.close();
   if (options.after_run) options.after_run();
   out.standards = run_standards(c, out.result, options.issue_time);
   out.issue_time_utc = run_issue_time(c, options.issue_time);
@@ -448,6 +446,10 @@ RunWritten run_and_write(OutputFolder& folder, const CaseSpec& c, const MetSerie
     in.issue_time_utc = out.issue_time_utc;
     folder.write_whole("chart.svg", render_run_chart_svg(in));
   }
+  // The two tables' writers finish while the standards and the other files are made; NetCDF-C
+  // is called from one thread at a time (budget.nc closes after the NetCDF task has joined).
+  budget.close();
+  hourly.close();
   return out;
 }
 
