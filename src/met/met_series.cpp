@@ -106,33 +106,53 @@ void fill_gaps(MetSeries& met, int max_gap_hours) {
   for (auto& c : met.extra) interpolate(c.values);
 }
 
+namespace {
+
+// The place of hour i in messages: "met.csv:14 (2026-01-12T05:00:00Z)". Appended piece by piece:
+// g++ 12 at -O3 reports a bogus -Wrestrict overlap for "literal" + std::string&& (GCC bug 105329).
+std::string hour_place(const MetSeries& met, std::size_t i) {
+  std::string where = met.source;
+  if (met.source_line[i] > 0) {
+    where += ':';
+    where += std::to_string(met.source_line[i]);
+  }
+  where += " (";
+  where += format_utc(met.stamp(i));
+  where += ')';
+  return where;
+}
+
+// Checks `value` against the range of `key` (fetched once by the caller); the message is built
+// only for a value outside it.
+void check_hour(const PlausibilityLimits& limits, const PlausibleRange& r, double value,
+                const MetSeries& met, std::size_t i) {
+  if (value < r.min || value > r.max) limits.check(r.key, value, hour_place(met, i));
+}
+
+}  // namespace
+
 void validate_met(const MetSeries& met, const PlausibilityLimits& limits) {
+  const PlausibleRange& height = limits.range("mixing_height");
+  const PlausibleRange& speed = limits.range("wind_speed");
+  const PlausibleRange& temperature = limits.range("air_temperature");
+  const PlausibleRange& pressure = limits.range("surface_pressure");
   for (std::size_t i = 0; i < met.size(); ++i) {
-    // Appended piece by piece: g++ 12 at -O3 reports a bogus -Wrestrict overlap for
-    // "literal" + std::string&& (GCC bug 105329).
-    std::string where = met.source;
-    if (met.source_line[i] > 0) {
-      where += ':';
-      where += std::to_string(met.source_line[i]);
-    }
-    where += " (";
-    where += format_utc(met.stamp(i));
-    where += ')';
     const double h = met.mixing_height_m[i];
     if (!std::isfinite(h) || h <= 0.0) {
-      throw InputError(where, "mixing height " + format_number(h) + " m",
+      throw InputError(hour_place(met, i), "mixing height " + format_number(h) + " m",
                        "a mixing height above 0 m");
     }
     if (!std::isfinite(met.wind_u_m_s[i]) || !std::isfinite(met.wind_v_m_s[i])) {
-      throw InputError(where, "a wind that is not a finite number", "finite wind values");
+      throw InputError(hour_place(met, i), "a wind that is not a finite number",
+                       "finite wind values");
     }
-    limits.check("mixing_height", h, where);
-    limits.check("wind_speed", std::hypot(met.wind_u_m_s[i], met.wind_v_m_s[i]), where);
+    check_hour(limits, height, h, met, i);
+    check_hour(limits, speed, std::hypot(met.wind_u_m_s[i], met.wind_v_m_s[i]), met, i);
     if (!met.air_temperature_K.empty()) {
-      limits.check("air_temperature", met.air_temperature_K[i], where);
+      check_hour(limits, temperature, met.air_temperature_K[i], met, i);
     }
     if (!met.surface_pressure_Pa.empty()) {
-      limits.check("surface_pressure", met.surface_pressure_Pa[i], where);
+      check_hour(limits, pressure, met.surface_pressure_Pa[i], met, i);
     }
   }
 }
