@@ -242,7 +242,7 @@ std::string headline(const Context& x, const Episode* e, const IndexCategory* wo
                                     {"category", category},
                                     {"index_name", index_name}});
   }
-  return x.say("headline_episode", {{"level", e->level_name},
+  std::string text = x.say("headline_episode", {{"level", e->level_name},
                                     {"pollutant", e->pollutant},
                                     {"area", x.area},
                                     {"start", x.local(e->start_utc)},
@@ -250,6 +250,9 @@ std::string headline(const Context& x, const Episode* e, const IndexCategory* wo
                                     {"likelihood", likelihood(x, *e)},
                                     {"category", category},
                                     {"index_name", index_name}});
+  // A headline is a sentence: a level named in lower case ("stagnation advisory") starts it.
+  if (!text.empty() && text[0] >= 'a' && text[0] <= 'z') text[0] = static_cast<char>(text[0] - 'a' + 'A');
+  return text;
 }
 
 BulletinSection incident(const Context& x, const Episode& e) {
