@@ -1,5 +1,7 @@
 #include "lidbox/base/data_dir.hpp"
 
+#include <algorithm>
+
 #include <cstdlib>
 #include <system_error>
 #include <vector>
@@ -73,6 +75,21 @@ std::optional<std::string> shipped_data_label(const fs::path& file, std::string_
   const fs::path rel = f.lexically_relative(d);
   if (rel.empty() || rel == "." || *rel.begin() == "..") return std::nullopt;
   return "lidbox data: " + std::string(kind) + "/" + rel.generic_string();
+}
+
+std::vector<std::string> data_file_ids(const std::filesystem::path& dir) {
+  std::vector<std::string> out;
+  std::error_code ec;
+  for (const auto& e : std::filesystem::directory_iterator(dir, ec)) {
+    if (e.path().extension() == ".toml") out.push_back(e.path().stem().string());
+  }
+  std::sort(out.begin(), out.end());
+  return out;
+}
+
+bool names_a_data_file(std::string_view reference) {
+  return reference.find('/') != std::string_view::npos ||
+         (reference.size() > 5 && reference.substr(reference.size() - 5) == ".toml");
 }
 
 }  // namespace lidbox

@@ -80,10 +80,6 @@ StagnationCriterion parse_criterion(const TomlTable& ct) {
   return c;
 }
 
-bool names_a_path(const std::string& s) {
-  return s.find('/') != std::string::npos ||
-         (s.size() > 5 && s.compare(s.size() - 5, 5, ".toml") == 0);
-}
 
 }  // namespace
 
@@ -107,18 +103,12 @@ StagnationScheme parse_stagnation_scheme(std::string_view text, const std::strin
 }
 
 std::vector<std::string> shipped_stagnation_schemes() {
-  std::vector<std::string> out;
-  std::error_code ec;
-  for (const auto& e : std::filesystem::directory_iterator(data_dir("stagnation"), ec)) {
-    if (e.path().extension() == ".toml") out.push_back(e.path().stem().string());
-  }
-  std::sort(out.begin(), out.end());
-  return out;
+  return data_file_ids(data_dir("stagnation"));
 }
 
 StagnationScheme load_stagnation_scheme(std::string_view id_or_path) {
   const std::string s(id_or_path);
-  if (names_a_path(s)) return parse_stagnation_scheme(read_text_file(s, s), s);
+  if (names_a_data_file(s)) return parse_stagnation_scheme(read_text_file(s, s), s);
   const auto file = data_dir("stagnation") / (s + ".toml");
   if (!std::filesystem::exists(file)) {
     const auto ids = shipped_stagnation_schemes();

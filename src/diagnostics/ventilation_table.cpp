@@ -94,36 +94,18 @@ VentilationTable parse_ventilation_table(std::string_view text, const std::strin
   return t;
 }
 
-namespace {
-
-bool names_a_path(const std::string& s) {
-  return s.find('/') != std::string::npos ||
-         (s.size() > 5 && s.compare(s.size() - 5, 5, ".toml") == 0);
-}
-
-std::vector<std::string> toml_stems(const std::filesystem::path& dir) {
-  std::vector<std::string> out;
-  std::error_code ec;
-  for (const auto& e : std::filesystem::directory_iterator(dir, ec)) {
-    if (e.path().extension() == ".toml") out.push_back(e.path().stem().string());
-  }
-  std::sort(out.begin(), out.end());
-  return out;
-}
-
-}  // namespace
 
 std::vector<std::string> shipped_ventilation_tables() {
-  return toml_stems(data_dir("ventilation"));
+  return data_file_ids(data_dir("ventilation"));
 }
 
 VentilationTable load_ventilation_table(std::string_view id_or_path) {
   const std::string s(id_or_path);
-  if (names_a_path(s)) return parse_ventilation_table(read_text_file(s, s), s);
+  if (names_a_data_file(s)) return parse_ventilation_table(read_text_file(s, s), s);
   const auto dir = data_dir("ventilation");
   const auto file = dir / (s + ".toml");
   if (!std::filesystem::exists(file)) {
-    const auto ids = toml_stems(dir);
+    const auto ids = data_file_ids(dir);
     throw InputError("ventilation table \"" + s + "\"", "not a shipped table",
                      "one of " + join(ids) + " or a path to a TOML file" + did_you_mean(s, ids));
   }

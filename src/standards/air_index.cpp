@@ -345,21 +345,12 @@ AirIndex load_air_index_file(const std::filesystem::path& path) {
 std::filesystem::path indices_directory() { return data_dir("indices"); }
 
 std::vector<std::string> list_air_indices(const std::filesystem::path& dir) {
-  std::vector<std::string> out;
-  std::error_code ec;
-  for (const auto& e : std::filesystem::directory_iterator(dir, ec)) {
-    if (e.path().extension() == ".toml") out.push_back(e.path().stem().string());
-  }
-  std::sort(out.begin(), out.end());
-  return out;
+  return data_file_ids(dir);
 }
 
 AirIndex load_air_index(std::string_view id_or_path) {
   const std::string s(id_or_path);
-  if (s.find('/') != std::string::npos ||
-      (s.size() > 5 && s.compare(s.size() - 5, 5, ".toml") == 0)) {
-    return load_air_index_file(s);
-  }
+  if (names_a_data_file(s)) return load_air_index_file(s);
   const auto dir = indices_directory();
   const auto file = dir / (s + ".toml");
   if (!std::filesystem::exists(file)) {

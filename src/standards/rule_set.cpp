@@ -433,21 +433,12 @@ std::filesystem::path rules_directory(const std::optional<std::filesystem::path>
 }
 
 std::vector<std::string> list_rule_sets(const std::filesystem::path& dir) {
-  std::vector<std::string> out;
-  std::error_code ec;
-  for (const auto& e : std::filesystem::directory_iterator(dir, ec)) {
-    if (e.path().extension() == ".toml") out.push_back(e.path().stem().string());
-  }
-  std::sort(out.begin(), out.end());
-  return out;
+  return data_file_ids(dir);
 }
 
 RuleSet load_rule_set(std::string_view name_or_path, const std::filesystem::path& dir) {
   const std::string s(name_or_path);
-  if (s.find('/') != std::string::npos ||
-      (s.size() > 5 && s.compare(s.size() - 5, 5, ".toml") == 0)) {
-    return load_rule_set_file(s);
-  }
+  if (names_a_data_file(s)) return load_rule_set_file(s);
   // A shipped file is named by its place in lidbox's data, so that reports read the same wherever
   // lidbox is checked out or installed; a file from the user's own folder keeps its path.
   auto load_labelled = [](const std::filesystem::path& file) {

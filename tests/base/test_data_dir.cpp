@@ -1,8 +1,10 @@
 #include <doctest/doctest.h>
 
 #include <unistd.h>
+#include <cstdio>
 #include <filesystem>
 #include <string>
+#include <vector>
 
 #include "lidbox/base/data_dir.hpp"
 #include "lidbox/base/error.hpp"
@@ -101,4 +103,21 @@ TEST_CASE("shipped files are labelled by their place in the data and other files
   CHECK(shipped_data_label(fs::path(LIDBOX_SOURCE_DIR) / "met-demo" / "cindervale-advisories.toml",
                            "rules") == std::nullopt);
   CHECK(shipped_data_label("local.toml", "rules") == std::nullopt);
+}
+
+TEST_CASE("a data folder's ids are its TOML files' stems, sorted; a reference with / or .toml is a file") {
+  const Tree t;
+  const fs::path dir = t.root / "own" / "rules";
+  for (const char* name : {"zeta.toml", "alpha.toml", "notes.md", "beta.TOML.bak"}) {
+    std::FILE* f = std::fopen((dir / name).c_str(), "w");
+    REQUIRE(f != nullptr);
+    std::fclose(f);
+  }
+  fs::create_directories(dir / "folder.toml.d");
+  CHECK(data_file_ids(dir) == std::vector<std::string>{"alpha", "zeta"});
+  CHECK(data_file_ids(t.root / "missing").empty());
+  CHECK_FALSE(names_a_data_file("us-naaqs"));
+  CHECK(names_a_data_file("mine.toml"));
+  CHECK(names_a_data_file("rules/mine"));
+  CHECK_FALSE(names_a_data_file(".toml"));  // five characters: no stem, so an id as written
 }

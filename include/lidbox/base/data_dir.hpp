@@ -21,6 +21,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <vector>
 
 namespace lidbox {
 
@@ -44,5 +45,13 @@ std::filesystem::path data_dir(std::string_view kind);
 // kind; nullopt for any other file, or when there is no data folder.
 std::optional<std::string> shipped_data_label(const std::filesystem::path& file,
                                               std::string_view kind);
+
+// The ids of the data files in a folder (rule sets, indices, ventilation tables, stagnation
+// schemes): the stems of its *.toml files, sorted; empty for a folder that cannot be read.
+std::vector<std::string> data_file_ids(const std::filesystem::path& dir);
+
+// Whether a reference to such data names a file rather than an id: it holds a '/' or ends in
+// ".toml" ("us-naaqs" is an id, "rules/mine.toml" and "mine.toml" are files).
+bool names_a_data_file(std::string_view reference);
 
 }  // namespace lidbox
