@@ -99,9 +99,8 @@ std::string PlausibilityLimits::expected(std::string_view key, const std::string
 void PlausibilityLimits::check(std::string_view key, double value, const std::string& where,
                                const std::string& shown, const std::string& shown_unit,
                                const std::string& hint) const {
-  if (std::isnan(value)) return;
   const PlausibleRange& r = range(key);
-  if (value >= r.min && value <= r.max) return;
+  if (r.admits(value)) return;
   const std::string unit = r.unit == "degree" ? "deg" : r.unit;
   std::string text = format_number(value) + " " + unit;
   if (!shown.empty()) {

@@ -117,7 +117,7 @@ void check_concentrations(const std::string& file,
     const PlausibleRange& r = limits.range(key);
     for (std::size_t i = 0; i < s.size(); ++i) {
       const double x = s.values[i] * to_ug_m3;
-      if (!(x < r.min || x > r.max)) continue;
+      if (r.admits(x)) continue;
       limits.check(key, x,
                    file + ": variable " + k + " (" + format_utc(s.hour_start(i)) + ")",
                    format_number(s.values[i]), s.unit,

@@ -167,7 +167,7 @@ HourlyDiagnosticsInput diagnostics_input(const MetSeries& met, MetReading readin
     for (std::size_t i = 0; i < n; ++i) {
       out[i] = conv(col->values[i]);
       if (!key) continue;
-      const bool inside = !(out[i] < limits.range(key).min || out[i] > limits.range(key).max);
+      const bool inside = limits.range(key).admits(out[i]);
       if (!inside) {
         const std::string line =
             i < met.source_line.size() && met.source_line[i] > 0

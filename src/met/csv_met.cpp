@@ -375,7 +375,7 @@ class RowReader {
       // The message is built only for a value outside its range (NaN passes: a gap).
       const auto check = [&](const char* key) {
         const PlausibleRange& r = limits_.range(key);
-        if (!(value < r.min || value > r.max)) return;
+        if (r.admits(value)) return;
         limits_.check(key, value, where() + ": column \"" + col.header + "\"", std::string(cell),
                       col.unit);
       };

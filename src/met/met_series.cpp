@@ -126,7 +126,7 @@ std::string hour_place(const MetSeries& met, std::size_t i) {
 // only for a value outside it.
 void check_hour(const PlausibilityLimits& limits, const PlausibleRange& r, double value,
                 const MetSeries& met, std::size_t i) {
-  if (value < r.min || value > r.max) limits.check(r.key, value, hour_place(met, i));
+  if (!r.admits(value)) limits.check(r.key, value, hour_place(met, i));
 }
 
 }  // namespace

@@ -27,7 +27,8 @@ class RowPipe {
   RowPipe(const RowPipe&) = delete;
   RowPipe& operator=(const RowPipe&) = delete;
 
-  // Room for the next row's `width` values; rethrows the writer's error, if any.
+  // Room for the next row's `width` values; a full block is handed over first, which rethrows
+  // an error the writer met (close() rethrows a later one).
   double* row();
   // Hands the last rows over and waits for the writer; rethrows its error.
   void close();

@@ -52,6 +52,17 @@ std::vector<int> verdicts(const std::string& scheme, const std::vector<DayValues
   return out;
 }
 
+// Two UTC days from 2026-01-10 of a 300 m lid and a 1 m/s west wind, from "met.csv".
+MetSeries calm_shallow_met() {
+  MetSeries met;
+  met.source = "met.csv";
+  met.first_stamp_utc = 1768003200;  // 2026-01-10T00:00:00Z
+  met.mixing_height_m.assign(48, 300.0);
+  met.wind_u_m_s.assign(48, 1.0);
+  met.wind_v_m_s.assign(48, 0.0);
+  return met;
+}
+
 }  // namespace
 
 TEST_CASE(
@@ -186,12 +197,7 @@ TEST_CASE("a partial day at the ends of the series is listed but not judged") {
 }
 
 TEST_CASE("a scheme whose field the met lacks is refused with the field named") {
-  MetSeries met;
-  met.source = "met.csv";
-  met.first_stamp_utc = 1768003200;
-  met.mixing_height_m.assign(48, 300.0);
-  met.wind_u_m_s.assign(48, 1.0);
-  met.wind_v_m_s.assign(48, 0.0);
+  MetSeries met = calm_shallow_met();
   met.extra.push_back({"precipitation", "mm", std::vector<double>(48, 0.0)});
   const DiagnosticsSetup setup = load_diagnostics_setup("", {"horton-2014"});
   const TimeZone utc;
@@ -205,12 +211,7 @@ TEST_CASE("a scheme whose field the met lacks is refused with the field named") 
 
 TEST_CASE("a met column in inches is converted before the threshold is applied") {
   // 1 in = 25.4 mm exactly; 0.03 in a day = 0.762 mm < 1 mm (Horton), 0.04 in = 1.016 mm is not.
-  MetSeries met;
-  met.source = "met.csv";
-  met.first_stamp_utc = 1768003200;
-  met.mixing_height_m.assign(48, 300.0);
-  met.wind_u_m_s.assign(48, 1.0);
-  met.wind_v_m_s.assign(48, 0.0);
+  MetSeries met = calm_shallow_met();
   std::vector<double> rain(48, 0.0);
   rain[5] = 0.03;
   rain[30] = 0.04;
@@ -259,12 +260,7 @@ TEST_CASE("the 500 hPa wind is checked against the setup's limits, so a case's t
   // 160 m/s lies above the shipped 500 hPa range (0 to 150 m/s, plausibility.cpp); a case that
   // widens the range to 200 m/s in [plausibility] must have it taken, and one that narrows it to
   // 100 m/s must have 120 m/s refused at the hour it occurs.
-  MetSeries met;
-  met.source = "met.csv";
-  met.first_stamp_utc = 1768003200;
-  met.mixing_height_m.assign(48, 300.0);
-  met.wind_u_m_s.assign(48, 1.0);
-  met.wind_v_m_s.assign(48, 0.0);
+  MetSeries met = calm_shallow_met();
   met.extra.push_back({"precipitation", "mm", std::vector<double>(48, 0.0)});
   std::vector<double> aloft(48, 10.0);
   aloft[7] = 160.0;

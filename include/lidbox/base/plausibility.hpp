@@ -31,6 +31,9 @@ struct PlausibleRange {
   double min = 0.0;
   double max = 0.0;
   std::string source;  // a published source, or "common practice, no source"
+  // Inside [min, max]; NaN counts as inside (a missing value is the gap rule's business). Lets a
+  // reader test a value before it builds the place a message would need.
+  [[nodiscard]] bool admits(double v) const { return !(v < min || v > max); }
 };
 
 class PlausibilityLimits {
