@@ -74,7 +74,7 @@ void dump_met(const MetDumpArgs& a) {
     const double u = m.wind_u_m_s[i], v = m.wind_v_m_s[i];
     const bool wind = !std::isnan(u) && !std::isnan(v);
     std::cout << format_utc(m.stamp(i)) << "," << num(m.mixing_height_m[i]) << "," << num(u) << ","
-              << num(v) << "," << (wind ? num(std::hypot(u, v)) : "") << ","
+              << num(v) << "," << (wind ? num(wind_speed_m_s(u, v)) : "") << ","
               << (wind ? num(wind_from_deg(u, v)) : "");
     if (!m.air_temperature_K.empty()) std::cout << "," << num(m.air_temperature_K[i]);
     if (!m.surface_pressure_Pa.empty()) std::cout << "," << num(m.surface_pressure_Pa[i]);

@@ -139,7 +139,7 @@ HourlyDiagnosticsInput diagnostics_input(const MetSeries& met, MetReading readin
   auto& wind = in.field[static_cast<std::size_t>(DiagnosticField::wind_10m)];
   mh = met.mixing_height_m;
   wind.resize(n);
-  for (std::size_t i = 0; i < n; ++i) wind[i] = std::hypot(met.wind_u_m_s[i], met.wind_v_m_s[i]);
+  for (std::size_t i = 0; i < n; ++i) wind[i] = wind_speed_m_s(met.wind_u_m_s[i], met.wind_v_m_s[i]);
   for (DiagnosticField f : needed) {
     if (f == DiagnosticField::mixing_height || f == DiagnosticField::wind_10m) continue;
     const MetColumn* col = met.find_extra(to_string(f));

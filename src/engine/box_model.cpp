@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include "lidbox/base/error.hpp"
+#include "lidbox/base/exponential.hpp"
 
 namespace lidbox {
 
@@ -125,7 +126,7 @@ double BoxEngine::floored_height(double h, HourResult& out) const {
 }
 
 double BoxEngine::flushing(double u, double v, double& f, HourResult& out) const {
-  const double speed = std::hypot(u, v);
+  const double speed = wind_speed_m_s(u, v);
   if (speed >= options_.min_wind_m_s) {
     f = geometry_.flushing_rate(u, v);
     return speed;
@@ -244,13 +245,9 @@ namespace {
 //   phi1(x) = (1 - e^-x) / x,   phi2(x) = (x - 1 + e^-x) / x^2,
 // instead of through C* = a / lambda, which cancels catastrophically when lambda h is tiny
 // (a near-calm, loss-free box). Series below 1e-4: the truncation error is under 1e-17.
-struct Phi {
-  double decay, g1, g2;  // e^-x, h phi1(x), h^2 phi2(x)
-};
-// One expm1 per pollutant and layer per sub-step.
-inline Phi phis(double x, double h) {
-  const double em1 = std::expm1(-x);
-  Phi p{1.0 + em1, 0.0, 0.0};
+// em1 = e^-x - 1 (exponential.hpp: the same function for one box and for a batch of boxes).
+inline BoxEngine::Phi phis_from(double em1, double x, double h) {
+  BoxEngine::Phi p{1.0 + em1, 0.0, 0.0};
   if (x < 1e-4) {
     p.g1 = h * (1.0 - x * (0.5 - x * (1.0 / 6.0 - x / 24.0)));
     p.g2 = h * h * (0.5 - x * (1.0 / 6.0 - x * (1.0 / 24.0 - x / 120.0)));
@@ -260,78 +257,97 @@ inline Phi phis(double x, double h) {
   }
   return p;
 }
+// One exponential per pollutant and layer per sub-step.
+inline BoxEngine::Phi phis(double x, double h) {
+  return phis_from(expm1_nonpositive(-x), x, h);
+}
 }  // namespace
+
+double BoxEngine::mixed_rate_per_s(const BoxState& s, double f, std::size_t p) const {
+  const PollutantProcesses& pr = processes_[p];
+  return f + pr.loss_rate_per_s + pr.deposition_velocity_m_s / s.mixing_height_m;
+}
+
+// Mixed layer: dC/dt = a_j - lambda C, a_0 = f Cb, a_1 = 0, a_(2+s) = q_s / H.
+void BoxEngine::mixed_update(BoxState& s, const Phi& ph, double dt, double f, double cb,
+                             const Forcing& F, std::size_t hour, int half, std::size_t p,
+                             double* mean, BudgetTerms& b) const {
+  const std::size_t J = parts();
+  const PollutantProcesses& pr = processes_[p];
+  const double H = s.mixing_height_m;
+  const double inv_area = 1.0 / footprint_.area_m2();
+  const double decay = ph.decay, g1 = ph.g1, g2 = ph.g2;
+  double integral = 0.0;
+  double q_total = 0.0;
+  for (std::size_t j = 0; j < J; ++j) {
+    double a = 0.0;
+    if (j == 0) {
+      a = f * cb;
+    } else if (j >= 2) {
+      const std::size_t sec = j - 2;
+      const double q =
+          F.emission(sec, p) * F.clock(sec, hour, static_cast<std::size_t>(half)) * inv_area;
+      q_total += q;
+      a = q / H;
+    }
+    const std::size_t k = p * J + j;
+    const double c0 = s.c_g_m3[k];
+    const double ic = c0 * g1 + a * g2;
+    s.c_g_m3[k] = c0 * decay + a * g1;
+    mean[k] += ic;
+    integral += ic;
+  }
+  b.emitted += q_total * dt;
+  b.advected_in += f * H * cb * dt;
+  b.advected_out += f * H * integral;
+  b.reacted += pr.loss_rate_per_s * H * integral;
+  b.deposited += pr.deposition_velocity_m_s * integral;
+}
+
+double BoxEngine::residual_rate_per_s(const BoxState& s, double fa, std::size_t p) const {
+  const double D = s.cycle_top_m - s.mixing_height_m;
+  const double Do = s.residual_top_m - s.cycle_top_m;
+  if (!options_.residual_layer || !(D > 0.0 || Do > 0.0)) return 0.0;
+  return processes_[p].residual_loss_rate_per_s + fa;
+}
+
+// Residual layer: dCr/dt = fa (Ca - Cr) - kr Cr, on its own between lid moves. Both slabs
+// alike; the integral is of the depth-weighted concentration [g m-2 s].
+void BoxEngine::residual_update(BoxState& s, const Phi& phr, double dt, double fa, double ca,
+                                std::size_t p, BudgetTerms& b) const {
+  const std::size_t J = parts();
+  const double D = s.cycle_top_m - s.mixing_height_m;
+  const double Do = s.residual_top_m - s.cycle_top_m;
+  const double decay_r = phr.decay, gr1 = phr.g1, gr2 = phr.g2;
+  double integral_r = 0.0;
+  for (std::size_t j = 0; j < J; ++j) {
+    const std::size_t k = p * J + j;
+    const double ar = j == 0 ? fa * ca : 0.0;
+    if (D > 0.0) {
+      const double c0 = s.cr_g_m3[k];
+      integral_r += D * (c0 * gr1 + ar * gr2);
+      s.cr_g_m3[k] = c0 * decay_r + ar * gr1;
+    }
+    if (Do > 0.0) {
+      const double c0 = s.older_g_m3[k];
+      integral_r += Do * (c0 * gr1 + ar * gr2);
+      s.older_g_m3[k] = c0 * decay_r + ar * gr1;
+    }
+  }
+  b.residual_reacted += processes_[p].residual_loss_rate_per_s * integral_r;
+  b.residual_advected_out += fa * integral_r;
+  b.residual_advected_in += fa * (D + Do) * ca * dt;
+}
 
 void BoxEngine::exact_step(BoxState& s, double dt, double f, double fa, const Forcing& F,
                            std::size_t hour, int half, HourResult& out) const {
-  const std::size_t J = parts();
-  const std::size_t P = pollutants();
-  const double H = s.mixing_height_m;
-  const double D = s.cycle_top_m - H;                  // the most recent cycle's slab
-  const double Do = s.residual_top_m - s.cycle_top_m;  // older air
-  const double inv_area = 1.0 / footprint_.area_m2();
-  for (std::size_t p = 0; p < P; ++p) {
-    const PollutantProcesses& pr = processes_[p];
+  for (std::size_t p = 0; p < pollutants(); ++p) {
     BudgetTerms& b = out.budget[p];
-    const double cb = F.background(p, hour);
-    const double ca = F.free_troposphere(p, hour);
-    // Mixed layer: dC/dt = a_j - lambda C.
-    const double lambda = f + pr.loss_rate_per_s + pr.deposition_velocity_m_s / H;
-    const Phi ph = phis(lambda * dt, dt);
-    const double decay = ph.decay, g1 = ph.g1, g2 = ph.g2;
-    double integral = 0.0;
-    double q_total = 0.0;
-    for (std::size_t j = 0; j < J; ++j) {
-      double a = 0.0;
-      if (j == 0) {
-        a = f * cb;
-      } else if (j >= 2) {
-        const std::size_t sec = j - 2;
-        const double q =
-            F.emission(sec, p) * F.clock(sec, hour, static_cast<std::size_t>(half)) * inv_area;
-        q_total += q;
-        a = q / H;
-      }
-      const std::size_t k = p * J + j;
-      const double c0 = s.c_g_m3[k];
-      const double ic = c0 * g1 + a * g2;
-      s.c_g_m3[k] = c0 * decay + a * g1;
-      out.mean_c_g_m3[k] += ic;
-      integral += ic;
-    }
-    b.emitted += q_total * dt;
-    b.advected_in += f * H * cb * dt;
-    b.advected_out += f * H * integral;
-    b.reacted += pr.loss_rate_per_s * H * integral;
-    b.deposited += pr.deposition_velocity_m_s * integral;
-
-    // Residual layer: dCr/dt = fa (Ca - Cr) - kr Cr, on its own between lid moves.
-    // Both slabs alike; the integral is of the depth-weighted concentration [g m-2 s].
-    if (options_.residual_layer && (D > 0.0 || Do > 0.0)) {
-      const double lr = pr.residual_loss_rate_per_s + fa;
-      if (lr > 0.0) {
-        const Phi phr = phis(lr * dt, dt);
-        const double decay_r = phr.decay, gr1 = phr.g1, gr2 = phr.g2;
-        double integral_r = 0.0;
-        for (std::size_t j = 0; j < J; ++j) {
-          const std::size_t k = p * J + j;
-          const double ar = j == 0 ? fa * ca : 0.0;
-          if (D > 0.0) {
-            const double c0 = s.cr_g_m3[k];
-            integral_r += D * (c0 * gr1 + ar * gr2);
-            s.cr_g_m3[k] = c0 * decay_r + ar * gr1;
-          }
-          if (Do > 0.0) {
-            const double c0 = s.older_g_m3[k];
-            integral_r += Do * (c0 * gr1 + ar * gr2);
-            s.older_g_m3[k] = c0 * decay_r + ar * gr1;
-          }
-        }
-        b.residual_reacted += pr.residual_loss_rate_per_s * integral_r;
-        b.residual_advected_out += fa * integral_r;
-        b.residual_advected_in += fa * (D + Do) * ca * dt;
-      }
-    }
+    const double lambda = mixed_rate_per_s(s, f, p);
+    mixed_update(s, phis(lambda * dt, dt), dt, f, F.background(p, hour), F, hour, half, p,
+                 out.mean_c_g_m3.data(), b);
+    const double lr = residual_rate_per_s(s, fa, p);
+    if (lr > 0.0) residual_update(s, phis(lr * dt, dt), dt, fa, F.free_troposphere(p, hour), p, b);
   }
 }
 
@@ -358,7 +374,7 @@ void accumulate_met(HourResult& out, double dt, double h, double h_met, double u
   out.wind_v_mean_m_s += v * w;
   out.wind_speed_mean_m_s += speed * w;
   out.flushing_rate_mean_per_s += f * w;
-  out.ventilation_mean_m2_s += std::hypot(u, v) * h_met * w;
+  out.ventilation_mean_m2_s += wind_speed_m_s(u, v) * h_met * w;
 }
 
 // Linear interpolation that returns the end values exactly at x = 0 and x = 1, so that the
@@ -554,6 +570,69 @@ bool BoxEngine::combine(BoxState& s, const HourResult& coarse_met, HourResult& o
   out.ventilation_mean_m2_s =
       extrapolate(out.ventilation_mean_m2_s, coarse_met.ventilation_mean_m2_s);
   return true;
+}
+
+// step_hour's held branch, pass by pass over the boxes: lids and flushing rates, then per half
+// of the hour (clock_split_s) the mixed layer's exponentials together, its updates, the residual
+// layer's exponentials together and its updates. Each box sees the operations of step_hour in
+// the same order, so the results are the same doubles.
+void BoxEngine::step_held_hours(BoxState* const* boxes, std::size_t n, const HeldMet& met,
+                                const Forcing& F, std::size_t hour, BatchWork& w,
+                                double* mean_c_g_m3) const {
+  if (options_.reading != MetReading::hour_average || pollutants() != 1) {
+    throw InternalError("step_held_hours: held forcing of one pollutant only");
+  }
+  if (w.x.size() < n) {
+    w.x.resize(n);
+    w.em1.resize(n);
+    w.f.resize(n);
+    w.fa.resize(n);
+    w.residual.resize(n);
+  }
+  if (w.scratch.budget.size() != 1) w.scratch = make_result();
+  HourResult& out = w.scratch;
+  const std::size_t J = parts();
+  std::fill(mean_c_g_m3, mean_c_g_m3 + n * J, 0.0);
+  const double fa_factor = options_.residual_wind_factor;
+  for (std::size_t i = 0; i < n; ++i) {
+    BoxState& s = *boxes[i];
+    move_lid(s, floored_height(met.mixing_height_m[i], out), F, hour, out);
+    const double u = met.wind_u_m_s[i], v = met.wind_v_m_s[i];
+    (void)flushing(u, v, w.f[i], out);
+    w.fa[i] = fa_factor > 0.0 ? geometry_.flushing_rate(u * fa_factor, v * fa_factor) : 0.0;
+  }
+  const double split = F.clock_split_s > 0 ? static_cast<double>(F.clock_split_s) : kHour;
+  const double ca = F.free_troposphere(0, hour);
+  for (int half = 0; half < (split < kHour ? 2 : 1); ++half) {
+    const double dt = half == 0 ? split : kHour - split;
+    for (std::size_t i = 0; i < n; ++i) {
+      w.x[i] = mixed_rate_per_s(*boxes[i], w.f[i], 0) * dt;
+      w.em1[i] = -w.x[i];
+    }
+    expm1_nonpositive(w.em1.data(), w.em1.data(), n);
+    bool any_residual = false;
+    for (std::size_t i = 0; i < n; ++i) {
+      BoxState& s = *boxes[i];
+      const double cb = met.background_g_m3 ? met.background_g_m3[i] : F.background(0, hour);
+      mixed_update(s, phis_from(w.em1[i], w.x[i], dt), dt, w.f[i], cb, F, hour, half, 0,
+                   mean_c_g_m3 + i * J, out.budget[0]);
+      const double lr = residual_rate_per_s(s, w.fa[i], 0);
+      w.residual[i] = lr > 0.0 ? 1 : 0;
+      any_residual = any_residual || lr > 0.0;
+      w.x[i] = lr * dt;
+      w.em1[i] = -w.x[i];
+    }
+    if (!any_residual) continue;
+    expm1_nonpositive(w.em1.data(), w.em1.data(), n);
+    for (std::size_t i = 0; i < n; ++i) {
+      if (w.residual[i]) {
+        residual_update(*boxes[i], phis_from(w.em1[i], w.x[i], dt), dt, w.fa[i], ca, 0,
+                        out.budget[0]);
+      }
+    }
+  }
+  out.budget[0] = BudgetTerms{};  // not kept: the lines only grow in the scratch result
+  for (std::size_t k = 0; k < n * J; ++k) mean_c_g_m3[k] /= kHour;
 }
 
 void BoxEngine::step_hour(BoxState& s, const Forcing& F, std::size_t hour, HourResult& out) const {

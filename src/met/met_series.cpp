@@ -147,7 +147,7 @@ void validate_met(const MetSeries& met, const PlausibilityLimits& limits) {
                        "finite wind values");
     }
     check_hour(limits, height, h, met, i);
-    check_hour(limits, speed, std::hypot(met.wind_u_m_s[i], met.wind_v_m_s[i]), met, i);
+    check_hour(limits, speed, wind_speed_m_s(met.wind_u_m_s[i], met.wind_v_m_s[i]), met, i);
     if (!met.air_temperature_K.empty()) {
       check_hour(limits, temperature, met.air_temperature_K[i], met, i);
     }

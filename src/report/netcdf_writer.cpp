@@ -493,7 +493,7 @@ CfTable met_cf_table(const MetSeries& met) {
   std::vector<double> speed(met.size()), from(met.size());
   for (std::size_t i = 0; i < met.size(); ++i) {
     const double u = met.wind_u_m_s[i], v = met.wind_v_m_s[i];
-    speed[i] = std::hypot(u, v);
+    speed[i] = wind_speed_m_s(u, v);
     from[i] = std::isnan(u) || std::isnan(v) ? std::nan("") : wind_from_deg(u, v);
   }
   add("wind_speed", "wind_speed", "wind speed", "m s-1", speed);

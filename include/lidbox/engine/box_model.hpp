@@ -233,6 +233,35 @@ class BoxEngine {
   // Advances the state through hour `hour` of the forcing. No allocation, no I/O.
   void step_hour(BoxState& s, const Forcing& forcing, std::size_t hour, HourResult& out) const;
 
+  // Many boxes of this engine (one pollutant) through the same hour of held forcing
+  // (MetReading::hour_average), each with its own met: box i takes hour `hour` of `forcing`
+  // (clock, emissions, free troposphere) with mixing height met.mixing_height_m[i], wind
+  // (met.wind_u_m_s[i], met.wind_v_m_s[i]) and background met.background_g_m3[i] (or the
+  // forcing's when null). The arithmetic is step_hour's, operation for operation (tests: equal
+  // to step_hour to the last bit), arranged in passes over the boxes so that the boxes'
+  // exponentials are one vectorised loop: grid runs (grid_run.hpp) step every cell this way.
+  // Writes the hour means [g m-3] to mean_c_g_m3[i * parts() + j]; the budget lines are not
+  // kept. InternalError for another reading or more than one pollutant.
+  struct HeldMet {
+    const double* mixing_height_m = nullptr;
+    const double* wind_u_m_s = nullptr;
+    const double* wind_v_m_s = nullptr;
+    const double* background_g_m3 = nullptr;
+  };
+  struct BatchWork {  // sized on first use, reused
+    std::vector<double> x, em1, f, fa;
+    std::vector<unsigned char> residual;
+    HourResult scratch;
+  };
+  void step_held_hours(BoxState* const* boxes, std::size_t n, const HeldMet& met,
+                       const Forcing& forcing, std::size_t hour, BatchWork& work,
+                       double* mean_c_g_m3) const;
+
+  // e^-x and the integrals of the exact step (box_model.cpp).
+  struct Phi {
+    double decay, g1, g2;  // e^-x, h phi1(x), h^2 phi2(x)
+  };
+
  private:
   void move_lid(BoxState& s, double new_height_m, const Forcing& F, std::size_t hour,
                 HourResult& out) const;
@@ -248,6 +277,16 @@ class BoxEngine {
   void vent_older(BoxState& s, HourResult& out) const;
   void exact_step(BoxState& s, double dt_s, double flushing_per_s, double flushing_aloft_per_s,
                   const Forcing& F, std::size_t hour, int half, HourResult& out) const;
+  // The pieces of exact_step, shared with step_held_hours: the decay rates [1/s] of the mixed
+  // layer and of the residual layer (0 when there is no residual air to update), and the
+  // updates given their Phi.
+  [[nodiscard]] double mixed_rate_per_s(const BoxState& s, double f, std::size_t p) const;
+  void mixed_update(BoxState& s, const Phi& ph, double dt, double f, double cb, const Forcing& F,
+                    std::size_t hour, int half, std::size_t p, double* mean,
+                    BudgetTerms& b) const;
+  [[nodiscard]] double residual_rate_per_s(const BoxState& s, double fa, std::size_t p) const;
+  void residual_update(BoxState& s, const Phi& phr, double dt, double fa, double ca, std::size_t p,
+                       BudgetTerms& b) const;
   double floored_height(double h, HourResult& out) const;
   // Flushing rate with the calm floor; returns the speed used.
   double flushing(double u, double v, double& f, HourResult& out) const;

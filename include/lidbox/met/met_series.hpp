@@ -7,6 +7,7 @@
 // spinning the wrong way round.
 #pragma once
 
+#include <cmath>
 #include <cstdint>
 #include <string>
 #include <vector>
@@ -54,6 +55,12 @@ struct MetSeries {
 // Wind conversions (degrees, metres per second).
 void wind_components(double speed_m_s, double from_deg, double& u_m_s, double& v_m_s);
 double wind_from_deg(double u_m_s, double v_m_s);  // 0 <= result < 360; 0 for a calm
+// The speed of a wind given by its components, sqrt(u^2 + v^2): the one formula of the library
+// (engine, diagnostics, readers, writers), within an ulp of std::hypot and several times faster;
+// no overflow for any plausible wind (|u|, |v| < 1e150).
+inline double wind_speed_m_s(double u_m_s, double v_m_s) {
+  return std::sqrt(u_m_s * u_m_s + v_m_s * v_m_s);
+}
 
 // Fills gaps in place by linear interpolation in time, separately for each variable, between the
 // nearest valid stamps on either side (wind by components); sets `filled` for each supplied stamp.
