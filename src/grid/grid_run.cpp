@@ -305,13 +305,31 @@ class Runner {
     return out;
   }
 
-  // Steps cells [c0, c1) of the block through the chunk.
+  // Steps cells [c0, c1) of the block through the chunk, kBatch cells at a time: held met
+  // steps them together (BoxEngine::step_held_hours), interpolated met one by one.
   void work(const Chunk& ch, std::size_t c0, std::size_t c1, std::vector<PeriodMaps>& closing_maps,
             const std::vector<std::size_t>& series_local,
             std::vector<std::vector<double>>& series_out) {
     Worker w(engine_);
-    for (std::size_t c = c0; c < c1; ++c)
-      step_cell(ch, c, w, closing_maps, series_local, series_out);
+    for (std::size_t b0 = c0; b0 < c1; b0 += kBatch) {
+      const std::size_t b1 = std::min(c1, b0 + kBatch);
+      w.total.assign((b1 - b0) * ch.hours, kNaN);
+      w.dil.assign((b1 - b0) * ch.hours, kNaN);
+      w.active.clear();
+      transpose_batch(ch, b0, b1, w);
+      for (std::size_t c = b0; c < b1; ++c) {
+        if (start_cell(ch, c, w)) w.active.push_back(c);
+      }
+      if (gc_.cell.met.reading == MetReading::hour_average) {
+        step_held(ch, b0, w);
+      } else {
+        for (std::size_t c : w.active) step_interpolated(ch, c, b0, w);
+      }
+      for (std::size_t c = b0; c < b1; ++c) {
+        write_series(ch, c, w, c - b0, series_local, series_out);
+        for (const auto& d : ch.days) day(ch, d, c, c - b0, state_[c], w, closing_maps);
+      }
+    }
   }
 
   std::size_t dropped() const {
@@ -323,11 +341,21 @@ class Runner {
   std::size_t row0() const { return row0_; }
 
  private:
+  static constexpr std::size_t kBatch = 512;  // cells stepped together (their state stays in cache)
+
   struct Worker {
     explicit Worker(const BoxEngine& e) : hr(e.make_result()) {}
     Forcing F;
     HourResult hr;
-    std::vector<double> dil, total, dil24;  // per chunk hour; per hour of a day
+    BoxEngine::BatchWork batch;
+    std::vector<std::size_t> active;  // cells of the batch still stepped
+    std::vector<BoxState*> boxes;
+    std::vector<double> h, u, v, cb, means;  // per active cell, one hour
+    // [cell of the batch * chunk hours + hour]: hour mean concentration and per unit flux
+    std::vector<double> dil, total;
+    std::vector<double> dil24;  // per hour of a day
+    std::size_t b0 = 0, nodes = 0;           // the batch's first cell, met records per cell
+    std::vector<std::vector<double>> met_t;  // [column][(cell - b0) * nodes + record]
     std::array<std::vector<double>, kDiagnosticFields> day;
     std::vector<int> verdict;
   };
@@ -340,8 +368,25 @@ class Runner {
     return m;
   }
 
-  double met(const Chunk& ch, std::size_t col, std::size_t node, std::size_t cell) const {
-    return ch.slab[col][node * cells_ + cell];
+  // The batch's met, cell by cell (Worker::met_t), so that a cell's hours are adjacent.
+  static double met(const Worker& w, std::size_t col, std::size_t node, std::size_t cell) {
+    return w.met_t[col][(cell - w.b0) * w.nodes + node];
+  }
+
+  // Copies the met of cells [b0, b1) out of the chunk's slab (hour-major) cell by cell.
+  void transpose_batch(const Chunk& ch, std::size_t b0, std::size_t b1, Worker& w) const {
+    const std::size_t nb = b1 - b0;
+    w.b0 = b0;
+    w.nodes = ch.slab.empty() ? 0 : ch.slab[0].size() / cells_;
+    w.met_t.resize(ch.slab.size());
+    for (std::size_t col = 0; col < ch.slab.size(); ++col) {
+      std::vector<double>& t = w.met_t[col];
+      t.resize(nb * w.nodes);
+      for (std::size_t i = 0; i < w.nodes; ++i) {
+        const double* row = &ch.slab[col][i * cells_ + b0];
+        for (std::size_t b = 0; b < nb; ++b) t[b * w.nodes + i] = row[b];
+      }
+    }
   }
 
   // The per-cell forcing, as build_forcing would give it for this cell's met.
@@ -350,7 +395,7 @@ class Runner {
     const std::size_t nodes = ch.hours + (inst ? 1 : 0);
     w.F = ch.templ;
     for (std::size_t i = 0; i < nodes; ++i) {
-      const double h = met(ch, 0, i, cell), u = met(ch, 1, i, cell), v = met(ch, 2, i, cell);
+      const double h = met(w, 0, i, cell), u = met(w, 1, i, cell), v = met(w, 2, i, cell);
       if (!(h > 0.0) || !std::isfinite(h) || !std::isfinite(u) || !std::isfinite(v)) {
         note_drop(ch, cell, i, h, u, v);
         return false;
@@ -387,51 +432,99 @@ class Runner {
     if (first_dropped_.empty() || where < first_dropped_) first_dropped_ = where;
   }
 
-  void step_cell(const Chunk& ch, std::size_t cell, Worker& w,
-                 std::vector<PeriodMaps>& closing_maps,
-                 const std::vector<std::size_t>& series_local,
-                 std::vector<std::vector<double>>& series_out) {
+  // Whether the cell steps through this chunk: its met is checked (a bad value drops it from
+  // here on), and a cell's first chunk starts its box (spin-up) as a point run would.
+  bool start_cell(const Chunk& ch, std::size_t cell, Worker& w) {
     CellState& s = state_[cell];
-    w.dil.assign(ch.hours, kNaN);
-    w.total.assign(ch.hours, kNaN);
-    if (!s.dropped && ch.hours > 0) {
+    if (s.dropped || ch.hours == 0) return false;
+    if (!s.started || gc_.cell.met.reading != MetReading::hour_average) {
       if (!fill_forcing(ch, cell, w)) {
         s.dropped = true;
-      } else {
-        if (!s.started) {
-          MetSeries m;
-          m.source = grid_.source();
-          RunResult spin;
-          s.box = start_state(gc_.cell, m, w.F, engine_, spin);
-          s.started = true;
-        }
-        for (std::size_t i = 0; i < ch.hours; ++i) {
-          engine_.step_hour(s.box, w.F, i, w.hr);
-          w.total[i] = w.hr.mean_total(0);
-          w.dil[i] = w.hr.mean(0, 2) / gc_.grid.flux_g_m2_s;
-        }
+        return false;
+      }
+      if (!s.started) {
+        MetSeries m;
+        m.source = grid_.source();
+        RunResult spin;
+        s.box = start_state(gc_.cell, m, w.F, engine_, spin);
+        s.started = true;
+      }
+      return true;
+    }
+    for (std::size_t i = 0; i < ch.hours; ++i) {
+      const double h = met(w, 0, i, cell), u = met(w, 1, i, cell), v = met(w, 2, i, cell);
+      if (!(h > 0.0) || !std::isfinite(h) || !std::isfinite(u) || !std::isfinite(v)) {
+        note_drop(ch, cell, i, h, u, v);
+        s.dropped = true;
+        return false;
       }
     }
-    write_series(ch, cell, w, series_local, series_out);
-    for (const auto& d : ch.days) day(ch, d, cell, s, w, closing_maps);
+    return true;
   }
 
-  void write_series(const Chunk& ch, std::size_t cell, const Worker& w,
+  // The active cells of the batch from b0 through the chunk's held hours, together.
+  void step_held(const Chunk& ch, std::size_t b0, Worker& w) {
+    const std::size_t n = w.active.size(), J = engine_.parts();
+    if (n == 0) return;
+    const PollutantSpec& ps = gc_.cell.pollutants[0];
+    const bool by_wind = ps.background.kind == BackgroundSpec::Kind::by_wind_from;
+    w.boxes.resize(n);
+    w.h.resize(n);
+    w.u.resize(n);
+    w.v.resize(n);
+    w.cb.resize(n);
+    w.means.resize(n * J);
+    for (std::size_t a = 0; a < n; ++a) w.boxes[a] = &state_[w.active[a]].box;
+    for (std::size_t i = 0; i < ch.hours; ++i) {
+      for (std::size_t a = 0; a < n; ++a) {
+        const std::size_t c = w.active[a];
+        w.h[a] = ch.slab[0][i * cells_ + c];
+        w.u[a] = ch.slab[1][i * cells_ + c];
+        w.v[a] = ch.slab[2][i * cells_ + c];
+        if (by_wind) w.cb[a] = ps.background.for_direction(wind_from_deg(w.u[a], w.v[a]));
+      }
+      engine_.step_held_hours(w.boxes.data(), n,
+                              {w.h.data(), w.u.data(), w.v.data(), by_wind ? w.cb.data() : nullptr},
+                              ch.templ, i, w.batch, w.means.data());
+      for (std::size_t a = 0; a < n; ++a) {
+        const double* m = &w.means[a * J];
+        double t = 0.0;
+        for (std::size_t j = 0; j < J; ++j) t += m[j];  // HourResult::mean_total's order
+        const std::size_t k = (w.active[a] - b0) * ch.hours + i;
+        w.total[k] = t;
+        w.dil[k] = m[2] / gc_.grid.flux_g_m2_s;
+      }
+    }
+  }
+
+  // One cell through the chunk's interpolated hours (w.F filled by start_cell).
+  void step_interpolated(const Chunk& ch, std::size_t cell, std::size_t b0, Worker& w) {
+    CellState& s = state_[cell];
+    for (std::size_t i = 0; i < ch.hours; ++i) {
+      engine_.step_hour(s.box, w.F, i, w.hr);
+      const std::size_t k = (cell - b0) * ch.hours + i;
+      w.total[k] = w.hr.mean_total(0);
+      w.dil[k] = w.hr.mean(0, 2) / gc_.grid.flux_g_m2_s;
+    }
+  }
+
+  void write_series(const Chunk& ch, std::size_t cell, const Worker& w, std::size_t in_batch,
                     const std::vector<std::size_t>& series_local,
                     std::vector<std::vector<double>>& out) const {
     const auto it = std::lower_bound(series_local.begin(), series_local.end(), cell);
     if (it == series_local.end() || *it != cell) return;
     const std::size_t k = static_cast<std::size_t>(it - series_local.begin());
     for (std::size_t i = 0; i < ch.hours; ++i) {
-      const double h = met(ch, 0, i, cell), u = met(ch, 1, i, cell), v = met(ch, 2, i, cell);
-      const double speed = std::hypot(u, v);
-      const double vals[5] = {h, speed, h * speed, w.total[i], w.dil[i]};
+      const double h = met(w, 0, i, cell), u = met(w, 1, i, cell), v = met(w, 2, i, cell);
+      const double speed = wind_speed_m_s(u, v);
+      const std::size_t m = in_batch * ch.hours + i;
+      const double vals[5] = {h, speed, h * speed, w.total[m], w.dil[m]};
       for (std::size_t var = 0; var < 5; ++var) out[var][k * ch.hours + i] = vals[var];
     }
   }
 
-  void day(const Chunk& ch, const ChunkDay& d, std::size_t cell, CellState& s, Worker& w,
-           std::vector<PeriodMaps>& closing_maps) {
+  void day(const Chunk& ch, const ChunkDay& d, std::size_t cell, std::size_t in_batch,
+           CellState& s, Worker& w, std::vector<PeriodMaps>& closing_maps) {
     for (std::size_t k = 0; k < s.acc.size(); ++k)
       close_if_needed(k, d.periods[k].key, s, cell, closing_maps);
     // The day's hours of the met as given and of the concentration per unit flux.
@@ -440,12 +533,12 @@ class Runner {
     const auto& cols = grid_.column_names();
     for (std::size_t j = 0; j < d.count; ++j) {
       const std::size_t i = d.first + j, h = d.hod + j;
-      w.day[static_cast<std::size_t>(DiagnosticField::mixing_height)][h] = met(ch, 0, i, cell);
+      w.day[static_cast<std::size_t>(DiagnosticField::mixing_height)][h] = met(w, 0, i, cell);
       w.day[static_cast<std::size_t>(DiagnosticField::wind_10m)][h] =
-          std::hypot(met(ch, 1, i, cell), met(ch, 2, i, cell));
+          wind_speed_m_s(met(w, 1, i, cell), met(w, 2, i, cell));
       for (std::size_t c = 3; c < cols.size(); ++c)
-        w.day[field_index(cols[c])][h] = met(ch, c, i, cell);
-      w.dil24[h] = w.dil[i];
+        w.day[field_index(cols[c])][h] = met(w, c, i, cell);
+      w.dil24[h] = w.dil[in_batch * ch.hours + i];
     }
     DayHours hours;
     for (std::size_t f = 0; f < kDiagnosticFields; ++f) hours.field[f] = w.day[f].data();
