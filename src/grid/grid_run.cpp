@@ -379,12 +379,17 @@ class Runner {
     w.b0 = b0;
     w.nodes = ch.slab.empty() ? 0 : ch.slab[0].size() / cells_;
     w.met_t.resize(ch.slab.size());
+    constexpr std::size_t kTile = 8;  // hours per pass: each cell's write is one cache line
     for (std::size_t col = 0; col < ch.slab.size(); ++col) {
       std::vector<double>& t = w.met_t[col];
       t.resize(nb * w.nodes);
-      for (std::size_t i = 0; i < w.nodes; ++i) {
-        const double* row = &ch.slab[col][i * cells_ + b0];
-        for (std::size_t b = 0; b < nb; ++b) t[b * w.nodes + i] = row[b];
+      for (std::size_t i0 = 0; i0 < w.nodes; i0 += kTile) {
+        const std::size_t i1 = std::min(w.nodes, i0 + kTile);
+        for (std::size_t b = 0; b < nb; ++b) {
+          const double* from = &ch.slab[col][b0 + b];
+          double* to = &t[b * w.nodes];
+          for (std::size_t i = i0; i < i1; ++i) to[i] = from[i * cells_];
+        }
       }
     }
   }

@@ -1,5 +1,6 @@
 #include "met/netcdf_file.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <filesystem>
 #include <limits>
@@ -157,18 +158,6 @@ std::vector<double> File::read_all(const Var& v) const {
   return r;
 }
 
-std::vector<double> File::read_slab(const Var& v, const std::vector<std::size_t>& start,
-                                    const std::vector<std::size_t>& count) const {
-  std::size_t n = 1;
-  for (auto c : count) n *= c;
-  std::vector<double> r(n);
-  if (n > 0) {
-    check(nc_get_vara_double(id_, v.id, start.data(), count.data(), r.data()),
-          "variable " + quoted(v.name));
-  }
-  return r;
-}
-
 std::vector<double> File::read_values(const Var& v) const {
   const Packing unpack(*this, v);
   auto r = read_all(v);
@@ -178,10 +167,54 @@ std::vector<double> File::read_values(const Var& v) const {
 
 std::vector<double> File::read_values(const Var& v, const std::vector<std::size_t>& start,
                                       const std::vector<std::size_t>& count) const {
-  const Packing unpack(*this, v);
-  auto r = read_slab(v, start, count);
-  for (auto& x : r) x = unpack(x);
+  std::vector<double> r;
+  read_values(v, start, count, r);
   return r;
+}
+
+namespace {
+// Reads the hyperslab in the stored type T into `stored`, then unpacks it into `out`.
+template <class T>
+void read_stored(const File& f, int ncid, const Var& v, const std::vector<std::size_t>& start,
+                 const std::vector<std::size_t>& count, std::vector<unsigned char>& stored,
+                 std::vector<double>& out) {
+  const std::size_t n = out.size();
+  stored.resize(n * sizeof(T));
+  auto* values = reinterpret_cast<T*>(stored.data());  // vector storage is aligned for any T
+  f.check(nc_get_vara(ncid, v.id, start.data(), count.data(), values),
+          "variable " + quoted(v.name));
+  Packing(f, v).unpack(values, out.data(), n);
+}
+}  // namespace
+
+void File::read_values(const Var& v, const std::vector<std::size_t>& start,
+                       const std::vector<std::size_t>& count, std::vector<double>& out) const {
+  std::size_t n = 1;
+  for (auto c : count) n *= c;
+  out.resize(n);
+  if (n == 0) return;
+  switch (v.type) {
+    case NC_BYTE:
+      return read_stored<signed char>(*this, id_, v, start, count, stored_, out);
+    case NC_UBYTE:
+      return read_stored<unsigned char>(*this, id_, v, start, count, stored_, out);
+    case NC_SHORT:
+      return read_stored<short>(*this, id_, v, start, count, stored_, out);
+    case NC_USHORT:
+      return read_stored<unsigned short>(*this, id_, v, start, count, stored_, out);
+    case NC_INT:
+      return read_stored<int>(*this, id_, v, start, count, stored_, out);
+    case NC_UINT:
+      return read_stored<unsigned int>(*this, id_, v, start, count, stored_, out);
+    case NC_FLOAT:
+      return read_stored<float>(*this, id_, v, start, count, stored_, out);
+    default:
+      break;  // double and 64-bit integers: NetCDF-C's conversion to double
+  }
+  check(nc_get_vara_double(id_, v.id, start.data(), count.data(), out.data()),
+        "variable " + quoted(v.name));
+  const Packing unpack(*this, v);
+  for (auto& x : out) x = unpack(x);
 }
 
 std::vector<std::string> File::read_ids(const Var& v) const {
@@ -275,5 +308,34 @@ double Packing::operator()(double packed) const {
   if (packed < valid_min_ || packed > valid_max_) return kNaN;
   return packed * scale_ + offset_;
 }
+
+// operator()'s steps in its order, without branches: the missing values (at most four; NaN pads
+// never compare equal), the _Unsigned wrap, the valid bounds, the scale and offset.
+template <class T>
+void Packing::unpack(const T* in, double* out, std::size_t n) const {
+  if (is_float_ || missing_.size() > 4) {
+    for (std::size_t i = 0; i < n; ++i) out[i] = (*this)(static_cast<double>(in[i]));
+    return;
+  }
+  double m[4] = {kNaN, kNaN, kNaN, kNaN};
+  std::copy(missing_.begin(), missing_.end(), m);
+  const double wrap = unsigned_wrap_, lo = valid_min_, hi = valid_max_;
+  const double scale = scale_, offset = offset_;
+  for (std::size_t i = 0; i < n; ++i) {
+    const double stored = static_cast<double>(in[i]);
+    const double packed = wrap > 0.0 && stored < 0.0 ? stored + wrap : stored;
+    const bool missing = (stored == m[0]) | (stored == m[1]) | (stored == m[2]) | (stored == m[3]) |
+                         (packed < lo) | (packed > hi);
+    out[i] = missing ? kNaN : packed * scale + offset;
+  }
+}
+
+template void Packing::unpack(const signed char*, double*, std::size_t) const;
+template void Packing::unpack(const unsigned char*, double*, std::size_t) const;
+template void Packing::unpack(const short*, double*, std::size_t) const;
+template void Packing::unpack(const unsigned short*, double*, std::size_t) const;
+template void Packing::unpack(const int*, double*, std::size_t) const;
+template void Packing::unpack(const unsigned int*, double*, std::size_t) const;
+template void Packing::unpack(const float*, double*, std::size_t) const;
 
 }  // namespace lidbox::netcdf

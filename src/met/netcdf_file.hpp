@@ -64,15 +64,20 @@ class File {
   [[nodiscard]] std::vector<double> number_att(int varid, const char* name) const;
   [[nodiscard]] std::string standard_name(const Var& v) const;
 
-  // Stored numbers converted to double by NetCDF-C, not unpacked: a whole variable, or the
-  // hyperslab start/count in the variable's dimension order.
+  // Stored numbers of a whole variable converted to double by NetCDF-C, not unpacked.
   [[nodiscard]] std::vector<double> read_all(const Var& v) const;
-  [[nodiscard]] std::vector<double> read_slab(const Var& v, const std::vector<std::size_t>& start,
-                                              const std::vector<std::size_t>& count) const;
-  // The same, unpacked (see above): missing values are NaN.
+  // Unpacked (see above; missing values are NaN): a whole variable, or the hyperslab start/count
+  // in the variable's dimension order.
   [[nodiscard]] std::vector<double> read_values(const Var& v) const;
   [[nodiscard]] std::vector<double> read_values(const Var& v, const std::vector<std::size_t>& start,
                                                 const std::vector<std::size_t>& count) const;
+  // The hyperslab unpacked into `out` (resized; its memory is reused from call to call, as the
+  // grid reader's slabs are). The stored numbers are read in their own type and converted here,
+  // exactly as NetCDF-C converts them to double (every integer type of up to 32 bits and float
+  // is exact in double), and unpacked in the same pass: the same doubles as read_values gives,
+  // without NetCDF-C's conversion pass. Not for concurrent use (NetCDF-C is not thread-safe).
+  void read_values(const Var& v, const std::vector<std::size_t>& start,
+                   const std::vector<std::size_t>& count, std::vector<double>& out) const;
   // Chunk lengths of a NetCDF-4 chunked variable, slowest dimension first; empty for contiguous
   // storage and classic files.
   [[nodiscard]] std::vector<std::size_t> chunk_sizes(const Var& v) const;
@@ -86,6 +91,7 @@ class File {
   std::vector<std::string> dim_names_;
   std::vector<std::size_t> dim_lens_;
   std::vector<Var> vars_;
+  mutable std::vector<unsigned char> stored_;  // read_values' buffer of stored numbers
 };
 
 // A coordinate variable: one dimension, named like it (NetCDF User Guide).
@@ -97,6 +103,10 @@ class Packing {
   Packing(const File& f, const Var& v);
   // The physical value of a stored number; NaN when it marks a missing value.
   [[nodiscard]] double operator()(double packed) const;
+  // out[i] = (*this)(in[i]) for stored numbers of type T, the same doubles; integer types in one
+  // branch-free pass that the compiler vectorises.
+  template <class T>
+  void unpack(const T* in, double* out, std::size_t n) const;
 
  private:
   std::vector<double> missing_;

@@ -1,6 +1,7 @@
 #include "lidbox/met/netcdf_grid.hpp"
 
 #include <cmath>
+#include <limits>
 
 #include "lidbox/base/error.hpp"
 #include "lidbox/base/text.hpp"
@@ -16,6 +17,34 @@ namespace lidbox {
 using netcdf::File;
 using netcdf::quoted;
 using netcdf::Var;
+
+namespace {
+constexpr double kInf = std::numeric_limits<double>::infinity();
+
+// One pass over a slab: the unit conversion in place, and whether any value (its magnitude for a
+// wind component) lies outside [lo, hi]; NaN does not. The flag is a double set by selects, the
+// form GCC vectorises (a bool or integer reduction of double comparisons it does not);
+// NetcdfGrid::check_slab then names the first value outside.
+bool convert_and_flag(double* v, std::size_t n, UnitConversion c, double lo, double hi,
+                      bool magnitude) {
+  double outside = 0.0;
+  if (magnitude) {
+    for (std::size_t i = 0; i < n; ++i) {
+      v[i] = c(v[i]);
+      const double a = std::fabs(v[i]);
+      outside = a < lo ? 1.0 : outside;
+      outside = a > hi ? 1.0 : outside;
+    }
+  } else {
+    for (std::size_t i = 0; i < n; ++i) {
+      v[i] = c(v[i]);
+      outside = v[i] < lo ? 1.0 : outside;
+      outside = v[i] > hi ? 1.0 : outside;
+    }
+  }
+  return outside != 0.0;
+}
+}  // namespace
 
 struct NetcdfGrid::Impl {
   explicit Impl(const std::string& path, const std::string& shown) : file(path, shown) {}
@@ -205,11 +234,15 @@ void NetcdfGrid::read(std::size_t record0, std::size_t n_records, std::size_t ro
   }
   out.resize(m.vars.size());
   for (std::size_t k = 0; k < m.vars.size(); ++k) {
-    out[k] =
-        m.file.read_values(*m.vars[k], {record0, row0, 0}, {n_records, n_rows, columns_per_row()});
-    const UnitConversion c = m.conv[k];
-    for (double& v : out[k]) v = c(v);
-    if (!m.range_keys[k].empty()) check_slab(k, record0, row0, n_rows, out[k]);
+    std::vector<double>& values = out[k];
+    m.file.read_values(*m.vars[k], {record0, row0, 0}, {n_records, n_rows, columns_per_row()},
+                       values);
+    const PlausibleRange* range =
+        m.range_keys[k].empty() ? nullptr : &m.limits.range(m.range_keys[k]);
+    const bool outside =
+        convert_and_flag(values.data(), values.size(), m.conv[k], range ? range->min : -kInf,
+                         range ? range->max : kInf, m.range_keys[k] == "wind_speed");
+    if (outside) check_slab(k, record0, row0, n_rows, values);
   }
 }
 
