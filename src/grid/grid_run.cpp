@@ -98,10 +98,23 @@ struct PeriodAcc {
   }
 };
 
+// A cell's first bad hour: the model hour, the global cell index and the met read there (NaN
+// where missing). Doubles, so that MPI ranks gather them like the maps; hour -1: none.
+struct DropRecord {
+  double hour = -1.0, cell = 0.0, h = 0.0, u = 0.0, v = 0.0;
+  // The earliest hour, then the first cell in storage order: the same whatever the threads and
+  // processes.
+  bool earlier_than(const DropRecord& o) const {
+    return hour < o.hour || (hour == o.hour && cell < o.cell);
+  }
+};
+
 struct CellState {
   BoxState box;
   bool started = false;
-  bool dropped = false;
+  bool dropped = false;  // set on the day that holds the cell's first bad hour
+  // Hours of the current chunk the cell steps through: all of them, or up to its first bad hour.
+  std::size_t steps = 0;
   std::vector<PeriodAcc> acc;  // per kind
 };
 
@@ -306,28 +319,35 @@ class Runner {
   }
 
   // Steps cells [c0, c1) of the block through the chunk, kBatch cells at a time: held met
-  // steps them together (BoxEngine::step_held_hours), interpolated met one by one.
+  // steps them together (BoxEngine::step_held_hours), interpolated met one by one. Everything
+  // reads the chunk's slab as stored (hour-major) and goes day by day across the batch, so that
+  // a day's rows of the batch stay in cache.
   void work(const Chunk& ch, std::size_t c0, std::size_t c1, std::vector<PeriodMaps>& closing_maps,
             const std::vector<std::size_t>& series_local,
             std::vector<std::vector<double>>& series_out) {
     Worker w(engine_);
     for (std::size_t b0 = c0; b0 < c1; b0 += kBatch) {
       const std::size_t b1 = std::min(c1, b0 + kBatch);
-      w.total.assign((b1 - b0) * ch.hours, kNaN);
-      w.dil.assign((b1 - b0) * ch.hours, kNaN);
+      w.b0 = b0;
+      w.nb = b1 - b0;
+      w.total.assign(w.nb * ch.hours, kNaN);
+      w.dil.assign(w.nb * ch.hours, kNaN);
       w.active.clear();
-      transpose_batch(ch, b0, b1, w);
+      if (gc_.cell.met.reading == MetReading::hour_average) check_held(ch, w);
+      w.cut = kNever;
       for (std::size_t c = b0; c < b1; ++c) {
-        if (start_cell(ch, c, w)) w.active.push_back(c);
+        if (!start_cell(ch, c, w)) continue;
+        w.active.push_back(c);
+        if (state_[c].steps < ch.hours) w.cut = std::min(w.cut, state_[c].steps);
       }
       if (gc_.cell.met.reading == MetReading::hour_average) {
-        step_held(ch, b0, w);
+        step_held(ch, w);
       } else {
-        for (std::size_t c : w.active) step_interpolated(ch, c, b0, w);
+        for (std::size_t c : w.active) step_interpolated(c, w);
       }
-      for (std::size_t c = b0; c < b1; ++c) {
-        write_series(ch, c, w, c - b0, series_local, series_out);
-        for (const auto& d : ch.days) day(ch, d, c, c - b0, state_[c], w, closing_maps);
+      for (std::size_t c = b0; c < b1; ++c) write_series(ch, c, w, series_local, series_out);
+      for (const auto& d : ch.days) {
+        for (std::size_t c = b0; c < b1; ++c) day(ch, d, c, state_[c], w, closing_maps);
       }
     }
   }
@@ -337,10 +357,11 @@ class Runner {
     for (const auto& s : state_) n += s.dropped ? 1 : 0;
     return n;
   }
-  std::string first_dropped() const { return first_dropped_; }
+  DropRecord first_drop() const { return first_drop_; }
   std::size_t row0() const { return row0_; }
 
  private:
+  static constexpr std::size_t kNever = std::numeric_limits<std::size_t>::max();
   static constexpr std::size_t kBatch = 512;  // cells stepped together (their state stays in cache)
 
   struct Worker {
@@ -351,11 +372,12 @@ class Runner {
     std::vector<std::size_t> active;  // cells of the batch still stepped
     std::vector<BoxState*> boxes;
     std::vector<double> h, u, v, cb, means;  // per active cell, one hour
-    // [cell of the batch * chunk hours + hour]: hour mean concentration and per unit flux
+    std::size_t b0 = 0, nb = 0;              // the batch: its first cell, its cells
+    std::size_t cut = 0;                     // the next hour at which an active cell stops stepping
+    // [hour * nb + cell - b0]: hour mean concentration and per unit flux
     std::vector<double> dil, total;
-    std::vector<double> dil24;  // per hour of a day
-    std::size_t b0 = 0, nodes = 0;           // the batch's first cell, met records per cell
-    std::vector<std::vector<double>> met_t;  // [column][(cell - b0) * nodes + record]
+    std::vector<double> dil24;    // per hour of a day
+    std::vector<double> bad_met;  // per cell of the batch: 1 when a held hour's met is bad
     std::array<std::vector<double>, kDiagnosticFields> day;
     std::vector<int> verdict;
   };
@@ -368,50 +390,35 @@ class Runner {
     return m;
   }
 
-  // The batch's met, cell by cell (Worker::met_t), so that a cell's hours are adjacent.
-  static double met(const Worker& w, std::size_t col, std::size_t node, std::size_t cell) {
-    return w.met_t[col][(cell - w.b0) * w.nodes + node];
+  double met(const Chunk& ch, std::size_t col, std::size_t node, std::size_t cell) const {
+    return ch.slab[col][node * cells_ + cell];
+  }
+  static std::size_t at(const Worker& w, std::size_t hour, std::size_t cell) {
+    return hour * w.nb + (cell - w.b0);
   }
 
-  // Copies the met of cells [b0, b1) out of the chunk's slab (hour-major) cell by cell.
-  void transpose_batch(const Chunk& ch, std::size_t b0, std::size_t b1, Worker& w) const {
-    const std::size_t nb = b1 - b0;
-    w.b0 = b0;
-    w.nodes = ch.slab.empty() ? 0 : ch.slab[0].size() / cells_;
-    w.met_t.resize(ch.slab.size());
-    constexpr std::size_t kTile = 8;  // hours per pass: each cell's write is one cache line
-    for (std::size_t col = 0; col < ch.slab.size(); ++col) {
-      std::vector<double>& t = w.met_t[col];
-      t.resize(nb * w.nodes);
-      for (std::size_t i0 = 0; i0 < w.nodes; i0 += kTile) {
-        const std::size_t i1 = std::min(w.nodes, i0 + kTile);
-        for (std::size_t b = 0; b < nb; ++b) {
-          const double* from = &ch.slab[col][b0 + b];
-          double* to = &t[b * w.nodes];
-          for (std::size_t i = i0; i < i1; ++i) to[i] = from[i * cells_];
-        }
-      }
-    }
-  }
-
-  // The per-cell forcing, as build_forcing would give it for this cell's met.
-  bool fill_forcing(const Chunk& ch, std::size_t cell, Worker& w) const {
+  // The per-cell forcing, as build_forcing would give it for this cell's met, up to its first
+  // bad node (named in the summary); returns the number of good nodes before it.
+  std::size_t fill_forcing(const Chunk& ch, std::size_t cell, Worker& w) const {
     const bool inst = gc_.cell.met.reading == MetReading::instantaneous;
     const std::size_t nodes = ch.hours + (inst ? 1 : 0);
     w.F = ch.templ;
-    for (std::size_t i = 0; i < nodes; ++i) {
-      const double h = met(w, 0, i, cell), u = met(w, 1, i, cell), v = met(w, 2, i, cell);
-      if (!(h > 0.0) || !std::isfinite(h) || !std::isfinite(u) || !std::isfinite(v)) {
-        note_drop(ch, cell, i, h, u, v);
-        return false;
+    std::size_t good = 0;
+    for (; good < nodes; ++good) {
+      const double h = met(ch, 0, good, cell), u = met(ch, 1, good, cell),
+                   v = met(ch, 2, good, cell);
+      if (bad_hour(h, u, v)) {
+        note_drop(ch, cell, good, h, u, v);
+        break;
       }
-      w.F.mixing_height_m[i] = h;
-      w.F.wind_u_m_s[i] = u;
-      w.F.wind_v_m_s[i] = v;
+      w.F.mixing_height_m[good] = h;
+      w.F.wind_u_m_s[good] = u;
+      w.F.wind_v_m_s[good] = v;
     }
     const PollutantSpec& ps = gc_.cell.pollutants[0];
     if (ps.background.kind == BackgroundSpec::Kind::by_wind_from) {
-      for (std::size_t i = 0; i < ch.hours; ++i) {
+      const std::size_t hours = inst ? (good > 0 ? good - 1 : 0) : good;
+      for (std::size_t i = 0; i < std::min(hours, ch.hours); ++i) {
         const double u =
             inst ? 0.5 * (w.F.wind_u_m_s[i] + w.F.wind_u_m_s[i + 1]) : w.F.wind_u_m_s[i];
         const double v =
@@ -419,58 +426,86 @@ class Runner {
         w.F.background(0, i) = ps.background.for_direction(wind_from_deg(u, v));
       }
     }
-    return true;
+    return good;
   }
 
   void note_drop(const Chunk& ch, std::size_t cell, std::size_t node, double h, double u,
                  double v) const {
     std::lock_guard<std::mutex> lock(drop_mutex_);
-    const std::size_t row = row0_ + cell / grid_.columns_per_row(),
-                      col = cell % grid_.columns_per_row();
-    const std::string where =
-        "cell (" + format_number(grid_.latitude_deg()[row]) + " deg N, " +
-        format_number(grid_.longitude_deg()[col]) + " deg E) at " +
-        format_utc(grid_.first_stamp_utc() +
-                   static_cast<UtcSeconds>(ch.hour0 + node) * kSecondsPerHour) +
-        ": mixing height " + format_number(h) + " m, wind (" + format_number(u) + ", " +
-        format_number(v) + ") m/s";
-    if (first_dropped_.empty() || where < first_dropped_) first_dropped_ = where;
+    const DropRecord r{static_cast<double>(ch.hour0 + node),
+                       static_cast<double>(row0_ * grid_.columns_per_row() + cell), h, u, v};
+    if (first_drop_.hour < 0.0 || r.earlier_than(first_drop_)) first_drop_ = r;
   }
 
-  // Whether the cell steps through this chunk: its met is checked (a bad value drops it from
-  // here on), and a cell's first chunk starts its box (spin-up) as a point run would.
+  // Whether the cell steps through this chunk, and through how many of its hours (CellState::
+  // steps): its met is checked, and a bad hour stops it there; from the day that holds that hour
+  // on, the cell is dropped (day()), whatever the chunk length. A cell's first chunk starts its
+  // box (spin-up on the first day, as a point run would); a bad hour in that day drops the cell
+  // from the start.
   bool start_cell(const Chunk& ch, std::size_t cell, Worker& w) {
     CellState& s = state_[cell];
+    s.steps = 0;
     if (s.dropped || ch.hours == 0) return false;
-    if (!s.started || gc_.cell.met.reading != MetReading::hour_average) {
-      if (!fill_forcing(ch, cell, w)) {
-        s.dropped = true;
-        return false;
-      }
+    const bool inst = gc_.cell.met.reading == MetReading::instantaneous;
+    if (!s.started || inst) {
+      const std::size_t good = fill_forcing(ch, cell, w);  // nodes before the first bad one
+      // Hour i needs node i (held) or nodes i and i + 1 (instantaneous).
+      s.steps = inst ? (good > 0 ? std::min(ch.hours, good - 1) : 0) : std::min(ch.hours, good);
       if (!s.started) {
+        if (s.steps < std::min<std::size_t>(24, ch.hours)) {
+          s.steps = 0;
+          s.dropped = true;
+          return false;
+        }
         MetSeries m;
         m.source = grid_.source();
         RunResult spin;
         s.box = start_state(gc_.cell, m, w.F, engine_, spin);
         s.started = true;
       }
-      return true;
+      return s.steps > 0;
     }
+    s.steps = ch.hours;
+    if (w.bad_met[cell - w.b0] == 0.0) return true;
     for (std::size_t i = 0; i < ch.hours; ++i) {
-      const double h = met(w, 0, i, cell), u = met(w, 1, i, cell), v = met(w, 2, i, cell);
-      if (!(h > 0.0) || !std::isfinite(h) || !std::isfinite(u) || !std::isfinite(v)) {
+      const double h = met(ch, 0, i, cell), u = met(ch, 1, i, cell), v = met(ch, 2, i, cell);
+      if (bad_hour(h, u, v)) {
         note_drop(ch, cell, i, h, u, v);
-        s.dropped = true;
-        return false;
+        s.steps = i;
+        break;
       }
     }
-    return true;
+    return s.steps > 0;
   }
 
-  // The active cells of the batch from b0 through the chunk's held hours, together.
-  void step_held(const Chunk& ch, std::size_t b0, Worker& w) {
-    const std::size_t n = w.active.size(), J = engine_.parts();
-    if (n == 0) return;
+  static bool bad_hour(double h, double u, double v) {
+    return !(h > 0.0) || !std::isfinite(h) || !std::isfinite(u) || !std::isfinite(v);
+  }
+
+  // Flags the batch's cells whose held met has a bad hour in this chunk (no positive finite
+  // mixing height, or a wind component not finite), in one pass over the slab as stored;
+  // start_cell names the first bad hour of a flagged cell.
+  void check_held(const Chunk& ch, Worker& w) const {
+    constexpr double kMax = std::numeric_limits<double>::max();
+    w.bad_met.assign(w.nb, 0.0);
+    double* bad = w.bad_met.data();
+    for (std::size_t i = 0; i < ch.hours; ++i) {
+      const double* h = &ch.slab[0][i * cells_ + w.b0];
+      const double* u = &ch.slab[1][i * cells_ + w.b0];
+      const double* v = &ch.slab[2][i * cells_ + w.b0];
+      for (std::size_t b = 0; b < w.nb; ++b) {  // NaN fails every comparison: bad
+        const bool ok =
+            (h[b] > 0.0) & (h[b] <= kMax) & (std::fabs(u[b]) <= kMax) & (std::fabs(v[b]) <= kMax);
+        bad[b] = ok ? bad[b] : 1.0;
+      }
+    }
+  }
+
+  // The active cells of the batch through the chunk's held hours together, each through its
+  // CellState::steps hours (a cell leaves the batch at its first bad hour).
+  void step_held(const Chunk& ch, Worker& w) {
+    std::size_t n = w.active.size();
+    const std::size_t J = engine_.parts();
     const PollutantSpec& ps = gc_.cell.pollutants[0];
     const bool by_wind = ps.background.kind == BackgroundSpec::Kind::by_wind_from;
     w.boxes.resize(n);
@@ -480,7 +515,8 @@ class Runner {
     w.cb.resize(n);
     w.means.resize(n * J);
     for (std::size_t a = 0; a < n; ++a) w.boxes[a] = &state_[w.active[a]].box;
-    for (std::size_t i = 0; i < ch.hours; ++i) {
+    for (std::size_t i = 0; i < ch.hours && n > 0; ++i) {
+      if (w.cut == i) n = leave_batch(i, w);
       for (std::size_t a = 0; a < n; ++a) {
         const std::size_t c = w.active[a];
         w.h[a] = ch.slab[0][i * cells_ + c];
@@ -488,6 +524,7 @@ class Runner {
         w.v[a] = ch.slab[2][i * cells_ + c];
         if (by_wind) w.cb[a] = ps.background.for_direction(wind_from_deg(w.u[a], w.v[a]));
       }
+      if (n == 0) break;
       engine_.step_held_hours(w.boxes.data(), n,
                               {w.h.data(), w.u.data(), w.v.data(), by_wind ? w.cb.data() : nullptr},
                               ch.templ, i, w.batch, w.means.data());
@@ -495,55 +532,73 @@ class Runner {
         const double* m = &w.means[a * J];
         double t = 0.0;
         for (std::size_t j = 0; j < J; ++j) t += m[j];  // HourResult::mean_total's order
-        const std::size_t k = (w.active[a] - b0) * ch.hours + i;
+        const std::size_t k = at(w, i, w.active[a]);
         w.total[k] = t;
         w.dil[k] = m[2] / gc_.grid.flux_g_m2_s;
       }
     }
   }
 
+  // Drops the cells whose steps end at hour i from the batch's active list (order kept); sets
+  // the next hour at which one ends; returns the cells left.
+  std::size_t leave_batch(std::size_t i, Worker& w) const {
+    std::size_t kept = 0;
+    w.cut = kNever;
+    for (std::size_t a = 0; a < w.active.size(); ++a) {
+      const std::size_t steps = state_[w.active[a]].steps;
+      if (steps <= i) continue;
+      w.cut = std::min(w.cut, steps);
+      w.active[kept] = w.active[a];
+      w.boxes[kept] = w.boxes[a];
+      ++kept;
+    }
+    w.active.resize(kept);
+    return kept;
+  }
+
   // One cell through the chunk's interpolated hours (w.F filled by start_cell).
-  void step_interpolated(const Chunk& ch, std::size_t cell, std::size_t b0, Worker& w) {
+  void step_interpolated(std::size_t cell, Worker& w) {
     CellState& s = state_[cell];
-    for (std::size_t i = 0; i < ch.hours; ++i) {
+    for (std::size_t i = 0; i < s.steps; ++i) {
       engine_.step_hour(s.box, w.F, i, w.hr);
-      const std::size_t k = (cell - b0) * ch.hours + i;
+      const std::size_t k = at(w, i, cell);
       w.total[k] = w.hr.mean_total(0);
       w.dil[k] = w.hr.mean(0, 2) / gc_.grid.flux_g_m2_s;
     }
   }
 
-  void write_series(const Chunk& ch, std::size_t cell, const Worker& w, std::size_t in_batch,
+  void write_series(const Chunk& ch, std::size_t cell, const Worker& w,
                     const std::vector<std::size_t>& series_local,
                     std::vector<std::vector<double>>& out) const {
     const auto it = std::lower_bound(series_local.begin(), series_local.end(), cell);
     if (it == series_local.end() || *it != cell) return;
     const std::size_t k = static_cast<std::size_t>(it - series_local.begin());
     for (std::size_t i = 0; i < ch.hours; ++i) {
-      const double h = met(w, 0, i, cell), u = met(w, 1, i, cell), v = met(w, 2, i, cell);
+      const double h = met(ch, 0, i, cell), u = met(ch, 1, i, cell), v = met(ch, 2, i, cell);
       const double speed = wind_speed_m_s(u, v);
-      const std::size_t m = in_batch * ch.hours + i;
+      const std::size_t m = at(w, i, cell);
       const double vals[5] = {h, speed, h * speed, w.total[m], w.dil[m]};
       for (std::size_t var = 0; var < 5; ++var) out[var][k * ch.hours + i] = vals[var];
     }
   }
 
-  void day(const Chunk& ch, const ChunkDay& d, std::size_t cell, std::size_t in_batch,
-           CellState& s, Worker& w, std::vector<PeriodMaps>& closing_maps) {
+  void day(const Chunk& ch, const ChunkDay& d, std::size_t cell, CellState& s, Worker& w,
+           std::vector<PeriodMaps>& closing_maps) {
     for (std::size_t k = 0; k < s.acc.size(); ++k)
       close_if_needed(k, d.periods[k].key, s, cell, closing_maps);
+    if (d.first + d.count > s.steps) s.dropped = true;  // the day of the cell's first bad hour
     // The day's hours of the met as given and of the concentration per unit flux.
     for (std::size_t f = 0; f < kDiagnosticFields; ++f) w.day[f].assign(24, kNaN);
     w.dil24.assign(24, kNaN);
     const auto& cols = grid_.column_names();
     for (std::size_t j = 0; j < d.count; ++j) {
       const std::size_t i = d.first + j, h = d.hod + j;
-      w.day[static_cast<std::size_t>(DiagnosticField::mixing_height)][h] = met(w, 0, i, cell);
+      w.day[static_cast<std::size_t>(DiagnosticField::mixing_height)][h] = met(ch, 0, i, cell);
       w.day[static_cast<std::size_t>(DiagnosticField::wind_10m)][h] =
-          wind_speed_m_s(met(w, 1, i, cell), met(w, 2, i, cell));
+          wind_speed_m_s(met(ch, 1, i, cell), met(ch, 2, i, cell));
       for (std::size_t c = 3; c < cols.size(); ++c)
-        w.day[field_index(cols[c])][h] = met(w, c, i, cell);
-      w.dil24[h] = w.dil[in_batch * ch.hours + i];
+        w.day[field_index(cols[c])][h] = met(ch, c, i, cell);
+      w.dil24[h] = w.dil[at(w, i, cell)];
     }
     DayHours hours;
     for (std::size_t f = 0; f < kDiagnosticFields; ++f) hours.field[f] = w.day[f].data();
@@ -632,7 +687,7 @@ class Runner {
   std::vector<std::optional<PeriodKey>> open_;
   std::vector<std::vector<long>> cell_open_;
   mutable std::mutex drop_mutex_;
-  mutable std::string first_dropped_;
+  mutable DropRecord first_drop_;
 };
 
 // Great-circle nearest cell (as the point reader picks it: netcdf_met.hpp).
@@ -777,9 +832,23 @@ void write_chunk(const GridCase& gc, const GridBlocks& blocks, const Runner& run
   }
 }
 
+// "cell (<lat> deg N, <lon> deg E) at <UTC>: mixing height <h> m, wind (<u>, <v>) m/s".
+std::string drop_text(const NetcdfGrid& grid, UtcSeconds first_hour_utc, const DropRecord& r) {
+  const auto cell = static_cast<std::size_t>(r.cell);
+  const std::size_t row = cell / grid.columns_per_row(), col = cell % grid.columns_per_row();
+  auto shown = [](double x, const char* unit) {
+    return std::isnan(x) ? std::string("missing") : format_number(x) + unit;
+  };
+  return "cell (" + format_number(grid.latitude_deg()[row]) + " deg N, " +
+         format_number(grid.longitude_deg()[col]) + " deg E) at " +
+         format_utc(first_hour_utc + static_cast<UtcSeconds>(r.hour) * kSecondsPerHour) +
+         ": mixing height " + shown(r.h, " m") + ", wind (" + shown(r.u, "") + ", " +
+         shown(r.v, "") + ") m/s";
+}
+
 // summary.txt of a grid run.
-std::string grid_summary_text(const GridCase& gc, const NetcdfGrid& grid,
-                              const GridRunSummary& S, UtcSeconds first_hour_utc) {
+std::string grid_summary_text(const GridCase& gc, const NetcdfGrid& grid, const GridRunSummary& S,
+                              UtcSeconds first_hour_utc) {
   std::string t =
       "lidbox grid: " + gc.base.file + " (" + gc.base.title + ")\n" + kScreeningCaution + "\n\n";
   t += "met: " + grid.source() + ", " + std::to_string(S.rows) + " x " + std::to_string(S.columns) +
@@ -878,7 +947,14 @@ GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
   }
   const auto dropped = gathered(blocks, {static_cast<double>(runner.dropped())});
   for (double d : dropped) S.dropped_cells += static_cast<std::size_t>(d);
-  S.first_dropped = runner.first_dropped();
+  const DropRecord mine = runner.first_drop();
+  const auto drops = gathered(blocks, {mine.hour, mine.cell, mine.h, mine.u, mine.v});
+  DropRecord first;
+  for (std::size_t k = 0; k + 4 < drops.size(); k += 5) {
+    const DropRecord d{drops[k], drops[k + 1], drops[k + 2], drops[k + 3], drops[k + 4]};
+    if (d.hour >= 0.0 && (first.hour < 0.0 || d.earlier_than(first))) first = d;
+  }
+  if (first.hour >= 0.0) S.first_dropped = drop_text(grid, runner.first_hour_utc(), first);
   if (!root) return S;
   for (auto& m : out.maps) S.files.push_back(m->close());
   if (out.series_file) S.files.push_back(out.series_file->close());

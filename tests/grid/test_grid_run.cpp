@@ -30,6 +30,7 @@ struct GridFixture {
   bool v_on_other_grid = false;
   bool one_map_chunks = false;
   bool constant = false;  // 500 m and (2, 0) m/s everywhere, all the time
+  long bad_hour = -1;     // an hour whose mixing height at cell (1, 2) is the fill value
 };
 
 double blh_of(const GridFixture& g, std::size_t t, std::size_t i, std::size_t j) {
@@ -98,6 +99,7 @@ void write_grid(const std::string& path, const GridFixture& g) {
       for (std::size_t j = 0; j < g.nlon; ++j) {
         const double phys[3] = {blh_of(g, h, i, j), u_of(g, h, i, j), v_of(g, h, i, j)};
         for (int k = 0; k < 3; ++k) vals[k].push_back(std::round((phys[k] - offset[k]) / scale[k]));
+        if (static_cast<long>(h) == g.bad_hour && i == 1 && j == 2) vals[0].back() = -32767;
       }
     }
   }
@@ -214,6 +216,50 @@ TEST_CASE("threads and chunk lengths give byte-identical files") {
       CHECK(maps == first_maps);
       CHECK(s == first_series);
     }
+  }
+}
+
+TEST_CASE("a cell with a bad hour is dropped from that day on, whatever the chunk length") {
+  // Documented in grid_run.hpp: a cell whose met turns bad is dropped from that moment on. The
+  // fixture starts 2026-01-10T00Z (19:00 local at -05:00); hour 600 is 2026-02-04T00Z, so
+  // January closes with the cell's values and February is a fill value; the series stops there.
+  const std::string dir = scratch_dir("grid-drop");
+  GridFixture g;
+  g.hours = 24 * 27;
+  g.bad_hour = 600;
+  write_grid(dir + "/grid.nc", g);
+  const std::string series =
+      "series = [ { latitude = \"40.25 deg\", longitude = \"-111.5 deg\" } ]\n"
+      "periods = [\"month\"]\n";
+  std::string first;
+  for (const auto& extra : {std::string("chunk_days = 1\n"), std::string("chunk_days = 5\n"),
+                            std::string("chunk_days = 40\n")}) {
+    CAPTURE(extra);
+    const GridCase gc = parse_grid_case(grid_case_text(series + extra), dir + "/g.toml", dir);
+    const std::string out = dir + "/out";
+    std::filesystem::remove_all(out);
+    const GridRunSummary S = run_grid(gc, out, {});
+    CHECK(S.dropped_cells == 1);
+    CHECK(S.first_dropped.find("2026-02-04T00:00:00Z: mixing height missing") !=
+          std::string::npos);
+    const auto valid = read_var(out + "/maps_month.nc", "valid_days");  // [month][lat][lon]
+    REQUIRE(valid.size() == 2 * 12);
+    const std::size_t cell = 1 * 4 + 2;
+    // Local days (UTC-5) run 05Z to 05Z: January 10..31 are whole inside the series (22 days,
+    // the 9th is cut); February 1..4 for the neighbour (the 5th ends after the last hour).
+    CHECK(valid[cell] == valid[cell + 1]);
+    CHECK(valid[cell] == 22.0);
+    CHECK(valid[12 + cell] > 1e30);  // February, which holds the bad hour: the fill value
+    CHECK(valid[12 + cell + 1] == 4.0);
+    const auto dil = read_var(out + "/series.nc", "concentration_per_unit_flux");
+    REQUIRE(dil.size() == g.hours);
+    CHECK(std::isfinite(dil[599]));
+    CHECK(dil[599] > 0.0);
+    CHECK(!(dil[600] < 1e30));  // fill (or NaN) from the bad hour on
+    CHECK(!(dil[g.hours - 1] < 1e30));
+    const std::string maps = bytes_of(out + "/maps_month.nc") + bytes_of(out + "/series.nc");
+    if (first.empty()) first = maps;
+    CHECK(maps == first);
   }
 }
 
