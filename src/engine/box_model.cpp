@@ -271,7 +271,7 @@ double BoxEngine::mixed_rate_per_s(const BoxState& s, double f, std::size_t p) c
 // Mixed layer: dC/dt = a_j - lambda C, a_0 = f Cb, a_1 = 0, a_(2+s) = q_s / H.
 void BoxEngine::mixed_update(BoxState& s, const Phi& ph, double dt, double f, double cb,
                              const Forcing& F, std::size_t hour, int half, std::size_t p,
-                             double* mean, BudgetTerms& b) const {
+                             double* mean, BudgetTerms* b) const {
   const std::size_t J = parts();
   const PollutantProcesses& pr = processes_[p];
   const double H = s.mixing_height_m;
@@ -297,11 +297,12 @@ void BoxEngine::mixed_update(BoxState& s, const Phi& ph, double dt, double f, do
     mean[k] += ic;
     integral += ic;
   }
-  b.emitted += q_total * dt;
-  b.advected_in += f * H * cb * dt;
-  b.advected_out += f * H * integral;
-  b.reacted += pr.loss_rate_per_s * H * integral;
-  b.deposited += pr.deposition_velocity_m_s * integral;
+  if (b == nullptr) return;
+  b->emitted += q_total * dt;
+  b->advected_in += f * H * cb * dt;
+  b->advected_out += f * H * integral;
+  b->reacted += pr.loss_rate_per_s * H * integral;
+  b->deposited += pr.deposition_velocity_m_s * integral;
 }
 
 double BoxEngine::residual_rate_per_s(const BoxState& s, double fa, std::size_t p) const {
@@ -314,7 +315,7 @@ double BoxEngine::residual_rate_per_s(const BoxState& s, double fa, std::size_t 
 // Residual layer: dCr/dt = fa (Ca - Cr) - kr Cr, on its own between lid moves. Both slabs
 // alike; the integral is of the depth-weighted concentration [g m-2 s].
 void BoxEngine::residual_update(BoxState& s, const Phi& phr, double dt, double fa, double ca,
-                                std::size_t p, BudgetTerms& b) const {
+                                std::size_t p, BudgetTerms* b) const {
   const std::size_t J = parts();
   const double D = s.cycle_top_m - s.mixing_height_m;
   const double Do = s.residual_top_m - s.cycle_top_m;
@@ -334,9 +335,10 @@ void BoxEngine::residual_update(BoxState& s, const Phi& phr, double dt, double f
       s.older_g_m3[k] = c0 * decay_r + ar * gr1;
     }
   }
-  b.residual_reacted += processes_[p].residual_loss_rate_per_s * integral_r;
-  b.residual_advected_out += fa * integral_r;
-  b.residual_advected_in += fa * (D + Do) * ca * dt;
+  if (b == nullptr) return;
+  b->residual_reacted += processes_[p].residual_loss_rate_per_s * integral_r;
+  b->residual_advected_out += fa * integral_r;
+  b->residual_advected_in += fa * (D + Do) * ca * dt;
 }
 
 void BoxEngine::exact_step(BoxState& s, double dt, double f, double fa, const Forcing& F,
@@ -345,9 +347,9 @@ void BoxEngine::exact_step(BoxState& s, double dt, double f, double fa, const Fo
     BudgetTerms& b = out.budget[p];
     const double lambda = mixed_rate_per_s(s, f, p);
     mixed_update(s, phis(lambda * dt, dt), dt, f, F.background(p, hour), F, hour, half, p,
-                 out.mean_c_g_m3.data(), b);
+                 out.mean_c_g_m3.data(), &b);
     const double lr = residual_rate_per_s(s, fa, p);
-    if (lr > 0.0) residual_update(s, phis(lr * dt, dt), dt, fa, F.free_troposphere(p, hour), p, b);
+    if (lr > 0.0) residual_update(s, phis(lr * dt, dt), dt, fa, F.free_troposphere(p, hour), p, &b);
   }
 }
 
@@ -615,7 +617,7 @@ void BoxEngine::step_held_hours(BoxState* const* boxes, std::size_t n, const Hel
       BoxState& s = *boxes[i];
       const double cb = met.background_g_m3 ? met.background_g_m3[i] : F.background(0, hour);
       mixed_update(s, phis_from(w.em1[i], w.x[i], dt), dt, w.f[i], cb, F, hour, half, 0,
-                   mean_c_g_m3 + i * J, out.budget[0]);
+                   mean_c_g_m3 + i * J, nullptr);
       const double lr = residual_rate_per_s(s, w.fa[i], 0);
       w.residual[i] = lr > 0.0 ? 1 : 0;
       any_residual = any_residual || lr > 0.0;
@@ -626,12 +628,11 @@ void BoxEngine::step_held_hours(BoxState* const* boxes, std::size_t n, const Hel
     expm1_nonpositive(w.em1.data(), w.em1.data(), n);
     for (std::size_t i = 0; i < n; ++i) {
       if (w.residual[i]) {
-        residual_update(*boxes[i], phis_from(w.em1[i], w.x[i], dt), dt, w.fa[i], ca, 0,
-                        out.budget[0]);
+        residual_update(*boxes[i], phis_from(w.em1[i], w.x[i], dt), dt, w.fa[i], ca, 0, nullptr);
       }
     }
   }
-  out.budget[0] = BudgetTerms{};  // not kept: the lines only grow in the scratch result
+  out.budget[0] = BudgetTerms{};  // not kept: move_lid's lines only grow in the scratch result
   for (std::size_t k = 0; k < n * J; ++k) mean_c_g_m3[k] /= kHour;
 }
 

@@ -113,16 +113,24 @@ struct Forcing {
 
   [[nodiscard]] std::size_t met_values() const { return mixing_height_m.size(); }
   // Element access in the layouts above.
-  [[nodiscard]] double& background(std::size_t p, std::size_t i) { return background_g_m3[p * n_hours + i]; }
-  [[nodiscard]] double background(std::size_t p, std::size_t i) const { return background_g_m3[p * n_hours + i]; }
+  [[nodiscard]] double& background(std::size_t p, std::size_t i) {
+    return background_g_m3[p * n_hours + i];
+  }
+  [[nodiscard]] double background(std::size_t p, std::size_t i) const {
+    return background_g_m3[p * n_hours + i];
+  }
   [[nodiscard]] double& free_troposphere(std::size_t p, std::size_t i) {
     return free_troposphere_g_m3[p * n_hours + i];
   }
   [[nodiscard]] double free_troposphere(std::size_t p, std::size_t i) const {
     return free_troposphere_g_m3[p * n_hours + i];
   }
-  [[nodiscard]] double& emission(std::size_t s, std::size_t p) { return emission_g_s[s * n_pollutants + p]; }
-  [[nodiscard]] double emission(std::size_t s, std::size_t p) const { return emission_g_s[s * n_pollutants + p]; }
+  [[nodiscard]] double& emission(std::size_t s, std::size_t p) {
+    return emission_g_s[s * n_pollutants + p];
+  }
+  [[nodiscard]] double emission(std::size_t s, std::size_t p) const {
+    return emission_g_s[s * n_pollutants + p];
+  }
   [[nodiscard]] double& clock(std::size_t s, std::size_t i, std::size_t half) {
     return clock_factor[(s * n_hours + i) * 2 + half];
   }
@@ -203,7 +211,9 @@ struct HourResult {
   std::vector<double> work_mean;
   std::vector<BudgetTerms> work_budget;
 
-  [[nodiscard]] double mean(std::size_t p, std::size_t j) const { return mean_c_g_m3[p * parts + j]; }
+  [[nodiscard]] double mean(std::size_t p, std::size_t j) const {
+    return mean_c_g_m3[p * parts + j];
+  }
   [[nodiscard]] double mean_total(std::size_t p) const;
 };
 
@@ -279,14 +289,13 @@ class BoxEngine {
                   const Forcing& F, std::size_t hour, int half, HourResult& out) const;
   // The pieces of exact_step, shared with step_held_hours: the decay rates [1/s] of the mixed
   // layer and of the residual layer (0 when there is no residual air to update), and the
-  // updates given their Phi.
+  // updates given their Phi; budget lines are added to *b unless b is null.
   [[nodiscard]] double mixed_rate_per_s(const BoxState& s, double f, std::size_t p) const;
   void mixed_update(BoxState& s, const Phi& ph, double dt, double f, double cb, const Forcing& F,
-                    std::size_t hour, int half, std::size_t p, double* mean,
-                    BudgetTerms& b) const;
+                    std::size_t hour, int half, std::size_t p, double* mean, BudgetTerms* b) const;
   [[nodiscard]] double residual_rate_per_s(const BoxState& s, double fa, std::size_t p) const;
   void residual_update(BoxState& s, const Phi& phr, double dt, double fa, double ca, std::size_t p,
-                       BudgetTerms& b) const;
+                       BudgetTerms* b) const;
   double floored_height(double h, HourResult& out) const;
   // Flushing rate with the calm floor; returns the speed used.
   double flushing(double u, double v, double& f, HourResult& out) const;
