@@ -106,7 +106,9 @@ void add_grid_command(CLI::App& app, int& exit_code) {
   sub->add_option("case", a->case_file, "Case file with a [grid] table (TOML)")->required();
   sub->add_option("-o,--output", a->output_dir, "Output folder (default: outputs/<case name>)");
   sub->add_option("--threads", a->threads,
-                  "Worker threads (default: [grid] threads, else all cores)");
+                  "Worker threads; from 2 on, one more reads the next chunk meanwhile (default: "
+                  "[grid] threads, "
+                  "else all cores)");
   sub->add_flag("-q,--quiet", a->quiet, "Print nothing on success, no progress");
   sub->callback([a, &exit_code] {
 #ifdef LIDBOX_MPI

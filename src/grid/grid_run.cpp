@@ -494,9 +494,11 @@ class Runner {
       const double* u = &ch.slab[1][i * cells_ + w.b0];
       const double* v = &ch.slab[2][i * cells_ + w.b0];
       for (std::size_t b = 0; b < w.nb; ++b) {  // NaN fails every comparison: bad
-        const bool ok =
-            (h[b] > 0.0) & (h[b] <= kMax) & (std::fabs(u[b]) <= kMax) & (std::fabs(v[b]) <= kMax);
-        bad[b] = ok ? bad[b] : 1.0;
+        // Selects one test at a time: the form GCC vectorises.
+        bad[b] = h[b] > 0.0 ? bad[b] : 1.0;
+        bad[b] = h[b] <= kMax ? bad[b] : 1.0;
+        bad[b] = std::fabs(u[b]) <= kMax ? bad[b] : 1.0;
+        bad[b] = std::fabs(v[b]) <= kMax ? bad[b] : 1.0;
       }
     }
   }
@@ -846,6 +848,19 @@ std::string drop_text(const NetcdfGrid& grid, UtcSeconds first_hour_utc, const D
          shown(r.v, "") + ") m/s";
 }
 
+// The first dropped cell of every process (the root's answer; "" when none was dropped).
+std::string first_drop_text(const NetcdfGrid& grid, const GridBlocks& blocks,
+                            const Runner& runner) {
+  const DropRecord mine = runner.first_drop();
+  const auto drops = gathered(blocks, {mine.hour, mine.cell, mine.h, mine.u, mine.v});
+  DropRecord first;
+  for (std::size_t k = 0; k + 4 < drops.size(); k += 5) {
+    const DropRecord d{drops[k], drops[k + 1], drops[k + 2], drops[k + 3], drops[k + 4]};
+    if (d.hour >= 0.0 && (first.hour < 0.0 || d.earlier_than(first))) first = d;
+  }
+  return first.hour >= 0.0 ? drop_text(grid, runner.first_hour_utc(), first) : "";
+}
+
 // summary.txt of a grid run.
 std::string grid_summary_text(const GridCase& gc, const NetcdfGrid& grid, const GridRunSummary& S,
                               UtcSeconds first_hour_utc) {
@@ -926,8 +941,10 @@ GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
   runner.prepare(cur);
   for (std::size_t j = 0; j + 1 < bounds.size(); ++j) {
     const bool last = j + 2 == bounds.size();
-    std::future<void> prefetch;  // the next chunk is read while this one steps
-    if (!last) {
+    // With two threads or more, the next chunk is read on one more thread while this one
+    // steps; one thread reads it after stepping (one core, as asked).
+    std::future<void> prefetch;
+    if (!last && S.threads > 1) {
       prefetch = std::async(std::launch::async, [&runner, &next, &bounds, j] {
         runner.load(next, bounds[j + 1], bounds[j + 2]);
       });
@@ -936,7 +953,11 @@ GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
     std::vector<std::vector<double>> series_out(
         series.vars.size(), std::vector<double>(series_local.size() * cur.hours, kNaN));
     step_chunk_on_threads(runner, cur, last, S.threads, closing, series_local, series_out);
-    if (prefetch.valid()) prefetch.get();
+    if (prefetch.valid()) {
+      prefetch.get();
+    } else if (!last) {
+      runner.load(next, bounds[j + 1], bounds[j + 2]);
+    }
     write_chunk(gc, blocks, runner, cur, closing, series, series_out, out);
     if (options.progress)
       options.progress(static_cast<double>(bounds[j + 1]) / static_cast<double>(runner.hours()));
@@ -947,14 +968,7 @@ GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
   }
   const auto dropped = gathered(blocks, {static_cast<double>(runner.dropped())});
   for (double d : dropped) S.dropped_cells += static_cast<std::size_t>(d);
-  const DropRecord mine = runner.first_drop();
-  const auto drops = gathered(blocks, {mine.hour, mine.cell, mine.h, mine.u, mine.v});
-  DropRecord first;
-  for (std::size_t k = 0; k + 4 < drops.size(); k += 5) {
-    const DropRecord d{drops[k], drops[k + 1], drops[k + 2], drops[k + 3], drops[k + 4]};
-    if (d.hour >= 0.0 && (first.hour < 0.0 || d.earlier_than(first))) first = d;
-  }
-  if (first.hour >= 0.0) S.first_dropped = drop_text(grid, runner.first_hour_utc(), first);
+  S.first_dropped = first_drop_text(grid, blocks, runner);
   if (!root) return S;
   for (auto& m : out.maps) S.files.push_back(m->close());
   if (out.series_file) S.files.push_back(out.series_file->close());

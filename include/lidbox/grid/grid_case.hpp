@@ -15,7 +15,7 @@
 //   exceedance_level     "40 s/m": days whose statistic exceeds it are counted (optional)
 //   series               [{ latitude = "41 deg", longitude = "-112 deg" }, ...]: full hourly
 //                        series of the nearest cells
-//   threads              worker threads (default: all cores)
+//   threads              worker threads (default: all cores; grid_run.hpp)
 //   chunk_days           days read and stepped at a time (default: from a 64 MB budget)
 // The case's [met] names the grid file and its variables (mixing_height, eastward_wind,
 // northward_wind; ERA5's blh, u10, v10 are found by name); [diagnostics] names the ventilation

@@ -3,6 +3,9 @@
 // a cell's hourly series equals run_case on read_met_netcdf of that cell), streamed through time
 // in chunks of whole local-standard days so that memory does not grow with the series' length,
 // on worker threads, and optionally over MPI processes that each take a block of grid rows.
+// Threads: N worker threads step the cells; with N >= 2 the next chunk is read on one more
+// thread while they step (reading is mostly NetCDF-C's decompression, which is serial); with
+// N = 1 the run reads and steps in turn on one thread, one core.
 //
 // Per cell and day (local standard days of the case's zone, daily_diagnostics.hpp): the
 // ventilation of the met as given, the verdict of each stagnation scheme, and the daily mean
@@ -41,7 +44,7 @@ struct GridBlocks {
 };
 
 struct GridRunOptions {
-  unsigned threads = 0;  // 0: the case's [grid] threads, else all cores
+  unsigned threads = 0;  // worker threads (see above); 0: the case's [grid] threads, else all cores
   GridBlocks blocks;
   std::function<void(double fraction)> progress;  // after each chunk, 0..1
 };
@@ -64,6 +67,5 @@ struct GridRunSummary {
 // into output_dir (rank 0 only; every file under a temporary name until the run completes).
 GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
                         const GridRunOptions& options);
-
 
 }  // namespace lidbox
