@@ -1,9 +1,9 @@
 #include "lidbox/grid/grid_run.hpp"
 
 #include <algorithm>
+#include <atomic>
 #include <cmath>
 #include <filesystem>
-#include <future>
 #include <limits>
 #include <map>
 #include <memory>
@@ -11,6 +11,7 @@
 #include <optional>
 #include <thread>
 
+#include "grid/thread_team.hpp"
 #include "lidbox/base/atomic_file.hpp"
 #include "lidbox/base/caution.hpp"
 #include "lidbox/base/error.hpp"
@@ -322,10 +323,10 @@ class Runner {
   // steps them together (BoxEngine::step_held_hours), interpolated met one by one. Everything
   // reads the chunk's slab as stored (hour-major) and goes day by day across the batch, so that
   // a day's rows of the batch stay in cache.
-  void work(const Chunk& ch, std::size_t c0, std::size_t c1, std::vector<PeriodMaps>& closing_maps,
-            const std::vector<std::size_t>& series_local,
+  void work(unsigned thread, const Chunk& ch, std::size_t c0, std::size_t c1,
+            std::vector<PeriodMaps>& closing_maps, const std::vector<std::size_t>& series_local,
             std::vector<std::vector<double>>& series_out) {
-    Worker w(engine_);
+    Worker& w = *workers_.at(thread);
     for (std::size_t b0 = c0; b0 < c1; b0 += kBatch) {
       const std::size_t b1 = std::min(c1, b0 + kBatch);
       w.b0 = b0;
@@ -333,23 +334,33 @@ class Runner {
       w.total.assign(w.nb * ch.hours, kNaN);
       w.dil.assign(w.nb * ch.hours, kNaN);
       w.active.clear();
-      if (gc_.cell.met.reading == MetReading::hour_average) check_held(ch, w);
-      w.cut = kNever;
-      for (std::size_t c = b0; c < b1; ++c) {
-        if (!start_cell(ch, c, w)) continue;
-        w.active.push_back(c);
-        if (state_[c].steps < ch.hours) w.cut = std::min(w.cut, state_[c].steps);
-      }
       if (gc_.cell.met.reading == MetReading::hour_average) {
+        check_held(ch, w);
+        w.cut = kNever;
+        for (std::size_t c = b0; c < b1; ++c) {
+          if (!start_cell(ch, c, w)) continue;
+          w.active.push_back(c);
+          if (state_[c].steps < ch.hours) w.cut = std::min(w.cut, state_[c].steps);
+        }
         step_held(ch, w);
       } else {
-        for (std::size_t c : w.active) step_interpolated(c, w);
+        // Interpolated met: each cell's own forcing (Worker::F, filled by start_cell) is used
+        // before the next cell's replaces it.
+        for (std::size_t c = b0; c < b1; ++c) {
+          if (start_cell(ch, c, w)) step_interpolated(c, w);
+        }
       }
       for (std::size_t c = b0; c < b1; ++c) write_series(ch, c, w, series_local, series_out);
       for (const auto& d : ch.days) {
         for (std::size_t c = b0; c < b1; ++c) day(ch, d, c, state_[c], w, closing_maps);
       }
     }
+  }
+
+  // One Worker (scratch memory, reused from chunk to chunk) per thread of the run.
+  void make_workers(unsigned threads) {
+    workers_.clear();
+    for (unsigned t = 0; t < threads; ++t) workers_.push_back(std::make_unique<Worker>(engine_));
   }
 
   std::size_t dropped() const {
@@ -690,6 +701,7 @@ class Runner {
   std::vector<std::vector<long>> cell_open_;
   mutable std::mutex drop_mutex_;
   mutable DropRecord first_drop_;
+  std::vector<std::unique_ptr<Worker>> workers_;
 };
 
 // Great-circle nearest cell (as the point reader picks it: netcdf_met.hpp).
@@ -776,28 +788,24 @@ GridOutputs open_grid_outputs(const GridCase& gc, const NetcdfGrid& grid, const 
   return out;
 }
 
-// Steps this process's cells through one chunk on T threads (each a contiguous block of cells).
-void step_chunk_on_threads(Runner& runner, const Chunk& cur, bool last, unsigned T,
-                           std::vector<PeriodMaps>& closing,
-                           const std::vector<std::size_t>& series_local,
-                           std::vector<std::vector<double>>& series_out) {
-  std::vector<std::exception_ptr> errors(T);
-  std::vector<std::thread> pool;
-  for (unsigned t = 0; t < T; ++t) {
-    const std::size_t c0 = runner.cells() * t / T, c1 = runner.cells() * (t + 1) / T;
-    pool.emplace_back([&, c0, c1, t] {
-      try {
-        runner.work(cur, c0, c1, closing, series_local, series_out);
-        if (last) runner.finish_cells(c0, c1, closing);
-      } catch (...) {
-        errors[t] = std::current_exception();
-      }
-    });
-  }
-  for (auto& th : pool) th.join();
-  for (const auto& e : errors) {
-    if (e) std::rethrow_exception(e);
-  }
+// Starts this process's cells through one chunk on the team: the threads take blocks of cells
+// in turn from `next_block` (set to 0; it must outlive the job), so that a thread slowed by the
+// reading of the next chunk takes fewer. Every cell's results are its own, so the files do not
+// depend on which thread took it. ThreadTeam::wait() ends it.
+void start_chunk(ThreadTeam& team, Runner& runner, const Chunk& cur, bool last,
+                 std::vector<PeriodMaps>& closing, const std::vector<std::size_t>& series_local,
+                 std::vector<std::vector<double>>& series_out,
+                 std::atomic<std::size_t>& next_block) {
+  constexpr std::size_t kBlock = 256;  // cells
+  team.start([&runner, &cur, last, &closing, &series_local, &series_out, &next_block](unsigned t) {
+    for (;;) {
+      const std::size_t c0 = next_block.fetch_add(1) * kBlock;
+      if (c0 >= runner.cells()) return;
+      const std::size_t c1 = std::min(runner.cells(), c0 + kBlock);
+      runner.work(t, cur, c0, c1, closing, series_local, series_out);
+      if (last) runner.finish_cells(c0, c1, closing);
+    }
+  });
 }
 
 // The chunk's closed periods and series, gathered from every process; the root writes them.
@@ -939,25 +947,27 @@ GridRunSummary run_grid(const GridCase& gc, const std::string& output_dir,
   Chunk cur, next;
   runner.load(cur, bounds[0], bounds[1]);
   runner.prepare(cur);
+  runner.make_workers(S.threads);
+  ThreadTeam team(S.threads);  // after the chunks: it stops before they go
   for (std::size_t j = 0; j + 1 < bounds.size(); ++j) {
     const bool last = j + 2 == bounds.size();
-    // With two threads or more, the next chunk is read on one more thread while this one
-    // steps; one thread reads it after stepping (one core, as asked).
-    std::future<void> prefetch;
-    if (!last && S.threads > 1) {
-      prefetch = std::async(std::launch::async, [&runner, &next, &bounds, j] {
-        runner.load(next, bounds[j + 1], bounds[j + 2]);
-      });
-    }
     std::vector<PeriodMaps> closing = runner.closing(cur, last);
     std::vector<std::vector<double>> series_out(
         series.vars.size(), std::vector<double>(series_local.size() * cur.hours, kNaN));
-    step_chunk_on_threads(runner, cur, last, S.threads, closing, series_local, series_out);
-    if (prefetch.valid()) {
-      prefetch.get();
-    } else if (!last) {
-      runner.load(next, bounds[j + 1], bounds[j + 2]);
+    // With two threads or more, this thread reads the next chunk while the team steps this one
+    // (NetCDF-C is called from this thread only); one thread steps, then reads.
+    std::atomic<std::size_t> next_block{0};
+    start_chunk(team, runner, cur, last, closing, series_local, series_out, next_block);
+    if (team.size() == 1) team.wait();
+    if (!last) {
+      try {
+        runner.load(next, bounds[j + 1], bounds[j + 2]);
+      } catch (...) {
+        team.finish_quietly();  // the team is done with this chunk before it goes
+        throw;
+      }
     }
+    team.wait();
     write_chunk(gc, blocks, runner, cur, closing, series, series_out, out);
     if (options.progress)
       options.progress(static_cast<double>(bounds[j + 1]) / static_cast<double>(runner.hours()));
