@@ -141,8 +141,16 @@ Layout map_layout(const GridCase& gc) {
   for (const auto& s : gc.diagnostics.schemes) {
     std::string id = s.id;
     std::replace(id.begin(), id.end(), '-', '_');
-    L.vars.push_back({"stagnation_days_" + id, "stagnation days by " + s.id + " (" + s.title + ")",
-                      "day", "", "time: sum"});
+    // Every day the criterion holds: a scheme's episode (episode_min_days in a row) is judged
+    // from the longest streak, not from this count.
+    const std::string episodes =
+        s.episode_min_days > 1
+            ? ", in an episode of " + std::to_string(s.episode_min_days) + " days or more or not"
+            : "";
+    L.vars.push_back(
+        {"stagnation_days_" + id,
+         "days the stagnation criterion of " + s.id + " holds (" + s.title + ")" + episodes, "day",
+         "", "time: sum"});
     L.vars.push_back({"longest_streak_" + id,
                       "longest run of stagnation days by " + s.id + " within the period", "day", "",
                       "time: maximum"});
