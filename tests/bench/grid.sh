@@ -6,7 +6,7 @@
 # equal by tests/reference/test_grid_maps_numpy.py); 2 threads against 1 (one thread reads and
 # steps in turn; two step while a third reads ahead); peak memory for the series and
 # for four times it; MPI -np 2 against 2 threads when build/mpi/lidbox exists.
-# Called by run.sh with <build-dir> <source-dir>.
+# Called by run.sh with <build-dir> <source-dir> (it needs the bench_grid_read target built).
 set -euo pipefail
 build=$(realpath "$1")
 src=$(realpath "$2")
@@ -56,6 +56,8 @@ ratio() { echo "scale=2; $1 / $2" | bc; }
 # every figure comes with its CPU time too (a thread speed-up shows only in wall time).
 echo "cores $(nproc), load average before: $(cut -d' ' -f1-3 /proc/loadavg)"
 read -r _ t_read c_read m_read < <(timed read "$py" "$src/tests/bench/bench_grid_reference.py" read "$work/grid-$hours.nc")
+# The floor: NetCDF-C alone reading the stored shorts (bench_grid_read.cpp, a bench target).
+read -r _ t_cread c_cread _ < <(timed cread "$build/bench_grid_read" "$work/grid-$hours.nc")
 read -r _ t_numpy c_numpy m_numpy < <(timed numpy "$py" "$src/tests/bench/bench_grid_reference.py" numpy "$work/grid-$hours.nc")
 read -r _ t_maps c_maps m_maps < <(timed maps "$py" "$src/tests/bench/bench_grid_reference.py" maps "$work/grid-$hours.nc")
 read -r _ t1 c1 m1 < <(timed one "$build/lidbox" grid "$work/case-1.toml" -o "$work/out1" --threads 1 -q)
@@ -63,6 +65,7 @@ read -r _ t2 c2 m2 < <(timed two "$build/lidbox" grid "$work/case-1.toml" -o "$w
 read -r _ t4 c4 m4 < <(timed four "$build/lidbox" grid "$work/case-4.toml" -o "$work/out4" --threads 2 -q)
 echo "grid $hours h x 100 x 100 cells (packed shorts), whole processes (wall s, CPU s, peak MB):"
 echo "  plain read of blh/u10/v10 (netCDF4)   $t_read s, CPU $c_read s, peak $m_read MB"
+echo "  NetCDF-C read of the stored shorts    $t_cread s, CPU $c_cread s (no unpacking, no stepping)"
 echo "  numpy loop, same box in every cell    $t_numpy s, CPU $c_numpy s, peak $m_numpy MB"
 echo "  numpy maps, the same maps as lidbox   $t_maps s, CPU $c_maps s, peak $m_maps MB"
 echo "  lidbox grid, 1 thread                 $t1 s, CPU $c1 s, peak $m1 MB"
@@ -70,6 +73,7 @@ echo "  lidbox grid, 2 threads                $t2 s, CPU $c2 s, peak $m2 MB"
 echo "  lidbox grid, 4 x the hours, 2 threads $t4 s, CPU $c4 s, peak $m4 MB"
 echo "  lidbox (2 threads) / plain read:      wall $(ratio "$t2" "$t_read"), CPU (1 thread) $(ratio "$c1" "$c_read") (target <= 1.5)"
 echo "  speed-up over the numpy loop:         wall $(ratio "$t_numpy" "$t2"), CPU (1 thread) $(ratio "$c_numpy" "$c1") (target >= 5)"
+echo "    (the NetCDF-C read alone is $(ratio "$t_numpy" "$t_cread") times faster than the numpy loop)"
 echo "  speed-up over the numpy maps:         wall $(ratio "$t_maps" "$t2"), CPU (1 thread) $(ratio "$c_maps" "$c1")"
 echo "  2 threads against 1 (wall):           $(ratio "$t1" "$t2") (target >= 1.7; CPU 2 threads / 1: $(ratio "$c2" "$c1"))"
 echo "  peak memory 4x hours / 1x:            $(echo "scale=3; $m4 / $m2" | bc) (target within 1.10)"
