@@ -82,7 +82,7 @@ struct ChunkDay {
 
 struct PeriodAcc {
   int valid_days = 0;
-  std::vector<int> stagnant, streak, longest;
+  std::vector<int> stagnant, streak, longest, episodes;
   double vent_sum = 0.0;
   std::vector<double> vent_daily;
   double dil_sum = 0.0;
@@ -92,6 +92,7 @@ struct PeriodAcc {
     stagnant.assign(schemes, 0);
     streak.assign(schemes, 0);
     longest.assign(schemes, 0);
+    episodes.assign(schemes, 0);
     vent_sum = 0.0;
     vent_daily.clear();
     dil_sum = 0.0;
@@ -117,6 +118,7 @@ struct CellState {
   // Hours of the current chunk the cell steps through: all of them, or up to its first bad hour.
   std::size_t steps = 0;
   std::vector<PeriodAcc> acc;  // per kind
+  std::vector<int> run;        // per scheme: stagnation days in a row, across periods
 };
 
 // Maps of one completed period for the cells of this block: maps[var][cell].
@@ -154,6 +156,11 @@ Layout map_layout(const GridCase& gc) {
     L.vars.push_back({"longest_streak_" + id,
                       "longest run of stagnation days by " + s.id + " within the period", "day", "",
                       "time: maximum"});
+    L.vars.push_back({"stagnation_episodes_" + id,
+                      "episodes of " + s.id + " (" + std::to_string(s.episode_min_days) +
+                          " or more stagnation days in a row), counted in the period of the day "
+                          "they reach that length; a run goes on across periods",
+                      "1", "", "time: sum"});
   }
   L.vars.push_back({"ventilation_mean",
                     "mean of the daily mean ventilation coefficient (mixing height x 10 m wind)",
@@ -187,6 +194,7 @@ void close_cell_period(const GridCase& gc, const Layout& L, PeriodAcc& a, bool d
   for (std::size_t s = 0; s < L.schemes; ++s) {
     put(a.stagnant[s]);
     put(a.longest[s]);
+    put(a.episodes[s]);
   }
   const double n = static_cast<double>(a.vent_daily.size());
   put(n > 0 ? a.vent_sum / n : kNaN);
@@ -237,6 +245,7 @@ class Runner {
     for (auto& s : state_) {
       s.acc.resize(gc.grid.periods.size());
       for (auto& a : s.acc) a.reset(layout_.schemes);
+      s.run.assign(layout_.schemes, 0);
     }
   }
 
@@ -398,7 +407,7 @@ class Runner {
     std::vector<double> dil24;    // per hour of a day
     std::vector<double> bad_met;  // per cell of the batch: 1 when a held hour's met is bad
     std::array<std::vector<double>, kDiagnosticFields> day;
-    std::vector<int> verdict;
+    std::vector<int> verdict, reached;  // per scheme, one day
   };
 
   PeriodMaps new_maps(std::size_t k, const PeriodKey& p) const {
@@ -635,8 +644,16 @@ class Runner {
         w.dil24.data(), gc_.grid.exceedance_statistic == GridExceedanceStatistic::daily_mean
                             ? DailyStatistic::mean
                             : DailyStatistic::max);
+    // An episode counts in the period of the day its run reaches the scheme's minimum length
+    // (StreakCounter's rule; the run goes on across period ends).
+    w.reached.assign(layout_.schemes, 0);
+    for (std::size_t sc = 0; sc < layout_.schemes; ++sc) {
+      s.run[sc] = w.verdict[sc] == 1 ? s.run[sc] + 1 : 0;
+      w.reached[sc] = s.run[sc] == gc_.diagnostics.schemes[sc].episode_min_days ? 1 : 0;
+    }
     for (auto& a : s.acc) {
       for (std::size_t sc = 0; sc < layout_.schemes; ++sc) {
+        a.episodes[sc] += w.reached[sc];
         if (w.verdict[sc] == 1) {
           ++a.stagnant[sc];
           ++a.streak[sc];

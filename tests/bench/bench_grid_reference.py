@@ -9,7 +9,7 @@
                       exponential step and lid dilution, reading a day of maps at a time.
   maps  FILE [OUT]    the numpy program a user writes for the maps `lidbox grid` writes for the
                       bench case (tests/bench/grid.sh): per year and per month, valid days,
-                      stagnation days and longest streak by the reduced Korshover-Angell (1982)
+                      stagnation days, longest streak and episodes by the reduced Korshover-Angell (1982)
                       form, mean and 10/50/90th percentiles of the daily mean ventilation, mean
                       daily mean concentration per unit flux and the days it exceeds 20 s/m; the
                       box of `numpy` stepped exactly as lidbox steps it (spin-up by repeating the
@@ -134,7 +134,8 @@ def maps(nc, out_path):
         bound = lambda ym: (calendar.timegm((ym[0], ym[1], 1, 0, 0, 0)) - offset_s) / 3600.0
         return k, bound(a), bound(b)
 
-    names = ["valid_days", "stagnation_days_" + scheme, "longest_streak_" + scheme, "ventilation_mean"]
+    names = ["valid_days", "stagnation_days_" + scheme, "longest_streak_" + scheme,
+             "stagnation_episodes_" + scheme, "ventilation_mean"]
     names += ["ventilation_p%g" % p for p in percentiles] + ["dilution_mean", "exceedance_days"]
     kinds = ("year", "month")
     out = None
@@ -161,6 +162,7 @@ def maps(nc, out_path):
             self.stag = np.zeros(ncell, int)
             self.streak = np.zeros(ncell, int)
             self.longest = np.zeros(ncell, int)
+            self.episodes = np.zeros(ncell, int)
             self.vent_sum = np.zeros(ncell)
             # the open period's daily means, for the percentiles (a row per day of the period)
             self.vent_days = np.empty((int(round((end - start) / 24.0)), ncell))
@@ -175,7 +177,7 @@ def maps(nc, out_path):
     def close(kind, a):
         n = a.valid.astype(float)
         with np.errstate(divide="ignore", invalid="ignore"):
-            vals = [a.valid, a.stag, a.longest, np.where(n > 0, a.vent_sum / n, np.nan)]
+            vals = [a.valid, a.stag, a.longest, a.episodes, np.where(n > 0, a.vent_sum / n, np.nan)]
             vd = a.vent_days[:a.n_days] if a.n_days else np.full((1, ncell), np.nan)
             vals += list(np.percentile(vd, percentiles, axis=0, overwrite_input=True))
             a.vent_days = vd = None
@@ -191,6 +193,11 @@ def maps(nc, out_path):
         written[kind] += 1
 
     acc = {k: None for k in kinds}
+    # Episodes: runs of episode_min (4) stagnation days or more; a run goes on across periods
+    # and counts in the period of the day it reaches that length (the scheme file's
+    # episode_min_days; Korshover and Angell 1982 count stagnation cases of 4 days or more).
+    episode_min = 4
+    run = np.zeros(ncell, int)
     local = t + offset_s
     day_of = local // 86400
     bounds = np.flatnonzero(np.diff(day_of)) + 1
@@ -222,8 +229,11 @@ def maps(nc, out_path):
         complete = ~dropped & np.isfinite(vent_mean) & (b - a == 24)
         stagnant = complete & (wind.sum(axis=0) / 24.0 < stag_below)
         dil_mean = dil.sum(axis=0) / 24.0
+        run = np.where(stagnant, run + 1, 0)
+        reached = run == episode_min
         for kind in kinds:
             x = acc[kind]
+            x.episodes += reached
             x.stag += stagnant
             x.streak = np.where(stagnant, x.streak + 1, 0)
             x.longest = np.maximum(x.longest, x.streak)

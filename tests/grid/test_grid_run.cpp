@@ -295,6 +295,9 @@ TEST_CASE("constant met gives the closed-form dilution and every day stagnant") 
   for (double v : read_var(f, "valid_days")) CHECK(v == 5.0);
   for (double v : read_var(f, "stagnation_days_korshover_angell_1982_10m")) CHECK(v == 5.0);
   for (double v : read_var(f, "longest_streak_korshover_angell_1982_10m")) CHECK(v == 5.0);
+  // Five stagnant days in a row hold one episode of the scheme's 4 days (Korshover and Angell
+  // 1982, as src/data/stagnation/korshover-angell-1982-10m.toml states it).
+  for (double v : read_var(f, "stagnation_episodes_korshover_angell_1982_10m")) CHECK(v == 1.0);
   for (double v : read_var(f, "ventilation_mean"))
     CHECK(v == doctest::Approx(1000.0).epsilon(1e-9));
   for (double v : read_var(f, "ventilation_p5")) CHECK(v == doctest::Approx(1000.0).epsilon(1e-9));

@@ -30,7 +30,7 @@ LIDBOX, SRC = sys.argv[1], sys.argv[2]
 HOURS = int(sys.argv[3]) if len(sys.argv) > 3 else 1460
 PY = sys.executable
 BENCH = os.path.join(SRC, "tests", "bench")
-COUNTS = ("valid_days", "stagnation_days_", "longest_streak_", "exceedance_days")
+COUNTS = ("valid_days", "stagnation_days_", "longest_streak_", "stagnation_episodes_", "exceedance_days")
 RTOL = 1e-9
 failures = []
 

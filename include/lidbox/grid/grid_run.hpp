@@ -14,6 +14,9 @@
 //   valid_days                        days with all 24 hours of met (judged days)
 //   stagnation_days_<scheme>          days the scheme holds
 //   longest_streak_<scheme>           longest run of stagnation days, counted within the period
+//   stagnation_episodes_<scheme>      episodes (the scheme's episode_min_days or more in a row),
+//                                     each counted in the period of the day its run reaches that
+//                                     length (StreakCounter's rule; runs go on across periods)
 //   ventilation_mean                  mean of the daily mean ventilation [m2 s-1]
 //   ventilation_p<q>                  percentiles of the daily mean ventilation (linear
 //                                     interpolation between order statistics, numpy's default,
