@@ -117,8 +117,8 @@ struct CellState {
   bool dropped = false;  // set on the day that holds the cell's first bad hour
   // Hours of the current chunk the cell steps through: all of them, or up to its first bad hour.
   std::size_t steps = 0;
-  std::vector<PeriodAcc> acc;  // per kind
-  std::vector<int> run;        // per scheme: stagnation days in a row, across periods
+  std::vector<PeriodAcc> acc;      // per kind
+  std::vector<StreakCounter> run;  // per scheme: the streak across periods, for the episodes
 };
 
 // Maps of one completed period for the cells of this block: maps[var][cell].
@@ -143,8 +143,8 @@ Layout map_layout(const GridCase& gc) {
   for (const auto& s : gc.diagnostics.schemes) {
     std::string id = s.id;
     std::replace(id.begin(), id.end(), '-', '_');
-    // Every day the criterion holds: a scheme's episode (episode_min_days in a row) is judged
-    // from the longest streak, not from this count.
+    // Every day the criterion holds; the episodes (episode_min_days in a row) have their own
+    // map below.
     const std::string episodes =
         s.episode_min_days > 1
             ? ", in an episode of " + std::to_string(s.episode_min_days) + " days or more or not"
@@ -245,7 +245,8 @@ class Runner {
     for (auto& s : state_) {
       s.acc.resize(gc.grid.periods.size());
       for (auto& a : s.acc) a.reset(layout_.schemes);
-      s.run.assign(layout_.schemes, 0);
+      s.run.clear();
+      for (const auto& scheme : gc.diagnostics.schemes) s.run.emplace_back(scheme.episode_min_days);
     }
   }
 
@@ -431,17 +432,11 @@ class Runner {
     const bool inst = gc_.cell.met.reading == MetReading::instantaneous;
     const std::size_t nodes = ch.hours + (inst ? 1 : 0);
     w.F = ch.templ;
-    std::size_t good = 0;
-    for (; good < nodes; ++good) {
-      const double h = met(ch, 0, good, cell), u = met(ch, 1, good, cell),
-                   v = met(ch, 2, good, cell);
-      if (bad_hour(h, u, v)) {
-        note_drop(ch, cell, good, h, u, v);
-        break;
-      }
-      w.F.mixing_height_m[good] = h;
-      w.F.wind_u_m_s[good] = u;
-      w.F.wind_v_m_s[good] = v;
+    const std::size_t good = first_bad_node(ch, cell, nodes);
+    for (std::size_t i = 0; i < good; ++i) {
+      w.F.mixing_height_m[i] = met(ch, 0, i, cell);
+      w.F.wind_u_m_s[i] = met(ch, 1, i, cell);
+      w.F.wind_v_m_s[i] = met(ch, 2, i, cell);
     }
     const PollutantSpec& ps = gc_.cell.pollutants[0];
     if (ps.background.kind == BackgroundSpec::Kind::by_wind_from) {
@@ -493,21 +488,21 @@ class Runner {
       }
       return s.steps > 0;
     }
-    s.steps = ch.hours;
-    if (w.bad_met[cell - w.b0] == 0.0) return true;
-    for (std::size_t i = 0; i < ch.hours; ++i) {
-      const double h = met(ch, 0, i, cell), u = met(ch, 1, i, cell), v = met(ch, 2, i, cell);
-      if (bad_hour(h, u, v)) {
-        note_drop(ch, cell, i, h, u, v);
-        s.steps = i;
-        break;
-      }
-    }
+    s.steps = w.bad_met[cell - w.b0] == 0.0 ? ch.hours : first_bad_node(ch, cell, ch.hours);
     return s.steps > 0;
   }
 
-  static bool bad_hour(double h, double u, double v) {
-    return !(h > 0.0) || !std::isfinite(h) || !std::isfinite(u) || !std::isfinite(v);
+  // The first of the cell's met records [0, nodes) of the chunk with no positive finite mixing
+  // height or a wind component not finite (noted for the summary), or `nodes` when none is.
+  std::size_t first_bad_node(const Chunk& ch, std::size_t cell, std::size_t nodes) const {
+    for (std::size_t i = 0; i < nodes; ++i) {
+      const double h = met(ch, 0, i, cell), u = met(ch, 1, i, cell), v = met(ch, 2, i, cell);
+      if (!(h > 0.0) || !std::isfinite(h) || !std::isfinite(u) || !std::isfinite(v)) {
+        note_drop(ch, cell, i, h, u, v);
+        return i;
+      }
+    }
+    return nodes;
   }
 
   // Flags the batch's cells whose held met has a bad hour in this chunk (no positive finite
@@ -644,12 +639,13 @@ class Runner {
         w.dil24.data(), gc_.grid.exceedance_statistic == GridExceedanceStatistic::daily_mean
                             ? DailyStatistic::mean
                             : DailyStatistic::max);
-    // An episode counts in the period of the day its run reaches the scheme's minimum length
-    // (StreakCounter's rule; the run goes on across period ends).
+    // An episode counts in the period of the day its streak reaches the scheme's minimum length,
+    // as a point run's StreakCounter counts it; the streak goes on across period ends.
     w.reached.assign(layout_.schemes, 0);
     for (std::size_t sc = 0; sc < layout_.schemes; ++sc) {
-      s.run[sc] = w.verdict[sc] == 1 ? s.run[sc] + 1 : 0;
-      w.reached[sc] = s.run[sc] == gc_.diagnostics.schemes[sc].episode_min_days ? 1 : 0;
+      const int before = s.run[sc].episodes();
+      s.run[sc].add(w.verdict[sc]);
+      w.reached[sc] = s.run[sc].episodes() - before;
     }
     for (auto& a : s.acc) {
       for (std::size_t sc = 0; sc < layout_.schemes; ++sc) {
