@@ -16,29 +16,8 @@ work="$build/bench-grid"
 mkdir -p "$work"
 [ -f "$work/grid-$hours.nc" ] || "$py" "$src/tests/bench/make_bench_grid.py" "$work/grid-$hours.nc" "$hours"
 [ -f "$work/grid-$((4 * hours)).nc" ] || "$py" "$src/tests/bench/make_bench_grid.py" "$work/grid-$((4 * hours)).nc" $((4 * hours))
-case_for() {  # <grid file> <case path>
-  cat > "$2" <<CASE
-# INVENTED benchmark case
-name = "bench-grid"
-invented = true
-time_zone = "UTC"
-[airshed]
-x_side = "10 km"
-y_side = "10 km"
-[met]
-file = "$1"
-[model]
-residual_layer = false
-[pollutants.X]
-unit = "ug/m3"
-background = "0 ug/m3"
-free_troposphere = "0 ug/m3"
-[diagnostics]
-schemes = ["korshover-angell-1982-10m"]
-[grid]
-periods = ["year", "month"]
-exceedance_level = "20 s/m"
-CASE
+case_for() {  # <grid file> <case path>: the bench case (bench-grid-case.toml.in) on that grid
+  sed "s#@GRID_FILE@#$1#" "$src/tests/bench/bench-grid-case.toml.in" > "$2"
 }
 case_for "$work/grid-$hours.nc" "$work/case-1.toml"
 case_for "$work/grid-$((4 * hours)).nc" "$work/case-4.toml"
